@@ -1,0 +1,23 @@
+//! qorbits: the table of GL2(Z)-classes of integral binary quartic forms.
+//!
+//! The library holds the exact kernel (forms, invariants, canonical representatives,
+//! factorisation and Galois groups); the `qorbits` binary is a thin command line over it.
+//! See DEVELOPERS.md for the map of the code and `../shared/DESIGN.md` for the mathematics.
+//!
+//! ```
+//! use qorbits::canonical::canonical;
+//! use qorbits::form::Form;
+//! use rug::Integer;
+//! let c = canonical(&Form::<Integer>::from_i64([1, 0, 0, 0, 2])).unwrap();
+//! assert_eq!(c.form, Form::from_i64([1, 0, 0, 0, 2]));
+//! ```
+#![deny(missing_docs)]
+
+pub mod canonical;
+pub mod covariant;
+pub mod error;
+pub mod form;
+pub mod galois;
+pub mod int;
+pub mod poly;
+pub mod real;
