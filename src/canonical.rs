@@ -200,7 +200,7 @@ fn moves_into_f<T: Int>(mut z: Cx<Mp>) -> Result<(Gl2<T>, Cx<Mp>)> {
                 m: [T::from_i64(1), T::from_i64(0), kt, T::from_i64(1)],
             };
             m = t.mul(&m).ok_or(Error::Overflow)?;
-            z.re = z.re.clone() - z.re.from_integer(&k);
+            z.re = z.re.clone() - z.re.int_lit(&k);
             continue;
         }
         let n = z.norm2();

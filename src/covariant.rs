@@ -68,45 +68,66 @@ fn initial_guesses(p: &[f64]) -> Vec<Cx<f64>> {
         .collect()
 }
 
-/// Aberth–Ehrlich iteration from `z`; returns the largest last correction relative to
-/// `max(1, |root|)`, or `None` if it did not converge.
+/// Aberth–Ehrlich iteration from `z`. Runs until every correction is at the working
+/// precision, or every residual `|p(z)|` is at the level of its own rounding error
+/// (`ε·Σ|cᵢ||z|ⁱ`: clustered roots cannot be located better at this precision). Returns
+/// for each root the classical a-posteriori radius `n·|p(z)/p'(z)|` (a disc of that radius
+/// about z contains a root), or `None` if the iteration diverged or never settled.
 fn aberth<R: Real>(p: &[R], z: &mut [Cx<R>], max_iter: usize) -> Option<Vec<f64>> {
     let n = z.len();
     let eps = p[0].epsilon();
     let one = p[0].lit(1.0);
-    let mut last = vec![f64::INFINITY; n];
-    let mut settled = 0;
+    let zero = one.lit(0.0);
+    let abs_coeffs: Vec<R> = p.iter().map(|c| c.abs()).collect();
     for _ in 0..max_iter {
-        let mut worst: f64 = 0.0;
+        let mut worst = zero.clone();
+        let mut at_noise = true;
         for k in 0..n {
             let (v, dv) = horner(p, &z[k]);
-            if v.norm2().to_f64() == 0.0 {
-                last[k] = 0.0;
-                continue;
+            if v.re == zero && v.im == zero {
+                continue; // an exact root
+            }
+            let r = z[k].abs();
+            let mut noise = zero.clone();
+            for c in &abs_coeffs {
+                noise = noise * r.clone() + c.clone();
+            }
+            if v.abs() > noise * eps.clone() * one.lit(64.0) {
+                at_noise = false;
             }
             let w = v.div(&dv);
-            let mut s = Cx::new(one.lit(0.0), one.lit(0.0));
+            let mut s = Cx::new(zero.clone(), zero.clone());
             for (j, zj) in z.iter().enumerate() {
                 if j != k {
-                    s = s.add(&Cx::new(one.clone(), one.lit(0.0)).div(&z[k].sub(zj)));
+                    s = s.add(&Cx::new(one.clone(), zero.clone()).div(&z[k].sub(zj)));
                 }
             }
-            let denom = Cx::new(one.clone(), one.lit(0.0)).sub(&w.mul(&s));
+            let denom = Cx::new(one.clone(), zero.clone()).sub(&w.mul(&s));
             let corr = w.div(&denom);
-            let size = corr.abs().to_f64();
-            let scale = z[k].abs().to_f64().max(1.0);
+            let scale = if r > one { r } else { one.clone() };
             z[k] = z[k].sub(&corr);
-            last[k] = size;
-            worst = worst.max(size / scale);
+            let rel = corr.abs() / scale;
+            if rel > worst {
+                worst = rel;
+            }
         }
-        if !worst.is_finite() {
+        if !worst.to_f64().is_finite() {
             return None;
         }
-        if worst < 16.0 * eps {
-            settled += 1;
-            if settled >= 2 {
-                return Some(last);
-            }
+        if worst < eps.clone() * one.lit(16.0) || at_noise {
+            let radii = z
+                .iter()
+                .map(|zk| {
+                    let (v, dv) = horner(p, zk);
+                    let r = n as f64 * (v.abs() / dv.abs()).to_f64();
+                    if r.is_finite() {
+                        r
+                    } else {
+                        f64::INFINITY
+                    }
+                })
+                .collect();
+            return Some(radii);
         }
     }
     None
@@ -139,12 +160,12 @@ fn roots<R: Real>(c: &[R; 5], guess: Option<Vec<Cx<f64>>>) -> Option<Roots<R>> {
         .into_iter()
         .map(|g| Cx::new(zero.lit(g.re), zero.lit(g.im)))
         .collect();
-    let last = aberth(&p, &mut z, 400)?;
-    let eps = zero.epsilon();
+    let radii = aberth(&p, &mut z, 400)?;
+    let eps = zero.epsilon().to_f64();
     let err = z
         .iter()
-        .zip(&last)
-        .map(|(r, l)| 4.0 * l + 64.0 * eps * r.abs().to_f64().max(1.0))
+        .zip(&radii)
+        .map(|(r, l)| l + 64.0 * eps * r.abs().to_f64().max(1.0))
         .collect();
     Some(Roots {
         finite: z,
@@ -211,7 +232,8 @@ fn minimise<R: Real>(roots: &[Cx<R>], start: (R, R)) -> Option<(R, R, f64)> {
     for _ in 0..400 {
         let l = local(roots, &x, &y);
         let det = l.hxx.clone() * l.hyy.clone() - l.hxy.clone() * l.hxy.clone();
-        let pd = l.hxx.to_f64() > 0.0 && det.to_f64() > 0.0;
+        let zero = x.lit(0.0);
+        let pd = l.hxx > zero && det > zero;
         let (mut dx, mut dy) = if pd {
             (
                 -(l.hyy.clone() * l.gx.clone() - l.hxy.clone() * l.gy.clone()) / det.clone(),
@@ -234,14 +256,15 @@ fn minimise<R: Real>(roots: &[Cx<R>], start: (R, R)) -> Option<(R, R, f64)> {
             // Plain Newton on ∇G near the minimum.
             newton_phase = true;
             let ny = y.clone() + dy.clone();
-            if ny.to_f64() <= 0.0 {
+            if ny <= zero {
                 return None;
             }
+            let step_r = (dx.clone() * dx.clone() + dy.clone() * dy.clone()).sqrt();
             x = x + dx;
             y = ny;
-            let step = len * yf;
-            let tiny = 64.0 * eps * (1.0 + x.to_f64().abs() + y.to_f64());
-            if step <= tiny {
+            let tiny_r = eps.clone() * x.lit(64.0) * (x.lit(1.0) + x.abs() + y.clone());
+            let (step, tiny) = (step_r.to_f64(), tiny_r.to_f64());
+            if step_r <= tiny_r {
                 // Quadratic convergence: the error after this step is far below the step.
                 return Some((x, y, 2.0 * step + tiny));
             }
@@ -333,7 +356,7 @@ pub fn point_f64(c: &[f64; 5]) -> Option<Point<f64>> {
 /// iteration fails at this precision.
 pub fn point_mp(c: &[Integer; 5], prec: u32) -> Option<Point<Mp>> {
     let zero = Mp::new(prec, 0.0);
-    let cr: [Mp; 5] = std::array::from_fn(|k| zero.from_integer(&c[k]));
+    let cr: [Mp; 5] = std::array::from_fn(|k| zero.int_lit(&c[k]));
     // Start the roots from an f64 solve when it converges (fast), else from a circle.
     let cf: Vec<f64> = c.iter().map(|v| v.to_f64()).collect();
     let guess = roots::<f64>(&[cf[0], cf[1], cf[2], cf[3], cf[4]], None)
@@ -343,7 +366,21 @@ pub fn point_mp(c: &[Integer; 5], prec: u32) -> Option<Point<Mp>> {
                 .all(|z| z.re.is_finite() && z.im.is_finite())
         })
         .map(|r| r.finite);
-    let r = roots(&cr, guess).or_else(|| roots(&cr, None))?;
+    // Guesses from f64 can stall inside a tight cluster; then restart from a circle.
+    let good = |r: &Roots<Mp>| root_error_bound(r) < zero.epsilon().sqrt().to_f64();
+    let r = match roots(&cr, guess) {
+        Some(r) if good(&r) => r,
+        first => match (first, roots(&cr, None)) {
+            (Some(a), Some(b)) => {
+                if root_error_bound(&a) <= root_error_bound(&b) {
+                    a
+                } else {
+                    b
+                }
+            }
+            (a, b) => a.or(b)?,
+        },
+    };
     let start = start_point(&r);
     let scale = r
         .finite

@@ -8,7 +8,7 @@
 //! use qorbits::form::{Form, Gl2};
 //! let f = Form::<i128>::new([1, -2, -3, -1, 5]);
 //! let inv = f.invariants().unwrap();
-//! assert_eq!((inv.i, inv.j), (63, -1188));
+//! assert_eq!((inv.i, inv.j), (63, -1647));
 //! // Invariants do not change under GL2(Z): translate x ↦ x + 3y.
 //! let g = f.act(&Gl2::new(1, 0, 3, 1)).unwrap();
 //! assert_eq!(g.invariants().unwrap(), inv);

@@ -14,6 +14,7 @@
 #![deny(missing_docs)]
 
 pub mod canonical;
+pub mod class;
 pub mod covariant;
 pub mod error;
 pub mod form;

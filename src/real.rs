@@ -39,9 +39,10 @@ pub trait Real:
     /// Nearest integer, as an exact integer.
     fn round_integer(&self) -> rug::Integer;
     /// The exact integer `n` at the precision of `self` (rounded if it has more bits).
-    fn from_integer(&self, n: &rug::Integer) -> Self;
-    /// Unit in the last place at this precision, relative to 1 (2⁻ᵖʳᵉᶜ).
-    fn epsilon(&self) -> f64;
+    fn int_lit(&self, n: &rug::Integer) -> Self;
+    /// Unit in the last place at this precision, relative to 1 (2⁻ᵖʳᵉᶜ), as a number of this
+    /// precision (it underflows f64 beyond 1074 bits).
+    fn epsilon(&self) -> Self;
 }
 
 impl Real for f64 {
@@ -63,10 +64,10 @@ impl Real for f64 {
     fn round_integer(&self) -> rug::Integer {
         rug::Integer::from_f64(self.round()).unwrap_or_default()
     }
-    fn from_integer(&self, n: &rug::Integer) -> Self {
+    fn int_lit(&self, n: &rug::Integer) -> Self {
         n.to_f64()
     }
-    fn epsilon(&self) -> f64 {
+    fn epsilon(&self) -> Self {
         f64::EPSILON
     }
 }
@@ -128,13 +129,12 @@ impl Real for Mp {
     fn round_integer(&self) -> rug::Integer {
         self.0.to_integer().unwrap_or_default()
     }
-    fn from_integer(&self, n: &rug::Integer) -> Self {
+    fn int_lit(&self, n: &rug::Integer) -> Self {
         Mp(Float::with_val(self.0.prec(), n))
     }
-    fn epsilon(&self) -> f64 {
-        Float::with_val(64, 2u32)
-            .pow(-(self.0.prec() as i32))
-            .to_f64()
+    fn epsilon(&self) -> Self {
+        let p = self.0.prec();
+        Mp(Float::with_val(p, 2u32).pow(-(p as i32)))
     }
 }
 

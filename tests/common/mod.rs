@@ -1,0 +1,122 @@
+//! Shared helpers for the integration tests: a deterministic PRNG and random forms and
+//! matrices of GL2(Z).
+#![allow(dead_code)]
+
+use qorbits::form::{Form, Gl2};
+use rug::Integer;
+
+/// splitmix64: a small deterministic generator (common practice, no source needed).
+pub struct Rng(pub u64);
+
+impl Rng {
+    pub fn next(&mut self) -> u64 {
+        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^ (z >> 31)
+    }
+
+    /// Uniform in `-m..=m`.
+    pub fn range(&mut self, m: i64) -> i64 {
+        (self.next() % (2 * m as u64 + 1)) as i64 - m
+    }
+
+    /// Uniform in `-10^digits < v < 10^digits`, any size.
+    pub fn big(&mut self, digits: u32) -> Integer {
+        let mut v = Integer::new();
+        for _ in 0..digits {
+            v = v * 10u32 + (self.next() % 10) as u32;
+        }
+        if self.next() % 2 == 0 {
+            -v
+        } else {
+            v
+        }
+    }
+}
+
+/// A random element of GL2(Z) with entries of absolute value at most `m`.
+pub fn random_gl2(rng: &mut Rng, m: i64) -> Gl2<Integer> {
+    loop {
+        let (p, r) = (rng.range(m), rng.range(m));
+        let (g, x, y) = ext_gcd(p, r);
+        if g != 1 {
+            continue;
+        }
+        // p·x + r·y = 1, so [[p, q], [r, s]] with s = x, q = −y has det 1.
+        let (mut q, mut s) = (-y, x);
+        // Shift (q, s) by multiples of (p, r) to spread the entries over the range.
+        let k = rng.range(m / (1 + p.abs().max(r.abs())).max(1));
+        q += k * p;
+        s += k * r;
+        if q.abs() > m || s.abs() > m {
+            continue;
+        }
+        let sign = if rng.next() % 2 == 0 { 1 } else { -1 };
+        let g = Gl2::<Integer>::new(p, q * sign, r, s * sign);
+        assert_eq!(g.det().unwrap().abs(), 1);
+        return g;
+    }
+}
+
+fn ext_gcd(a: i64, b: i64) -> (i64, i64, i64) {
+    if b == 0 {
+        if a < 0 {
+            (-a, -1, 0)
+        } else {
+            (a, 1, 0)
+        }
+    } else {
+        let (g, x, y) = ext_gcd(b, a.rem_euclid(b));
+        (g, y, x - (a.div_euclid(b)) * y)
+    }
+}
+
+/// A random form with coefficients in `-m..=m` and non-zero discriminant.
+pub fn random_form(rng: &mut Rng, m: i64) -> Form<Integer> {
+    loop {
+        let f = Form::<Integer>::from_i64(std::array::from_fn(|_| rng.range(m)));
+        if f.invariants().unwrap().disc != 0 {
+            return f;
+        }
+    }
+}
+
+/// A random form with coefficients of up to `digits` decimal digits and Disc ≠ 0.
+pub fn random_big_form(rng: &mut Rng, digits: u32) -> Form<Integer> {
+    loop {
+        let f = Form::new(std::array::from_fn(|_| rng.big(digits)));
+        if f.invariants().unwrap().disc != 0 {
+            return f;
+        }
+    }
+}
+
+/// Elements of PGL2(Z) (as [p, q, r, s]) forming the stabiliser of i and of e^{πi/3}.
+pub const STAB_I: [[i64; 4]; 4] = [[1, 0, 0, 1], [1, 0, 0, -1], [0, 1, 1, 0], [0, 1, -1, 0]];
+pub const STAB_RHO: [[i64; 4]; 6] = [
+    [1, 0, 0, 1],
+    [1, 0, -1, -1],
+    [0, 1, 1, 0],
+    [0, 1, -1, -1],
+    [1, 1, -1, 0],
+    [1, 1, 0, -1],
+];
+pub const STAB_LINES: [[[i64; 4]; 2]; 3] = [
+    [[1, 0, 0, 1], [1, 0, 0, -1]],  // Re z = 0
+    [[1, 0, 0, 1], [1, 0, -1, -1]], // Re z = 1/2
+    [[1, 0, 0, 1], [0, 1, 1, 0]],   // |z| = 1
+];
+
+/// `Σ_{g ∈ G} g·f`: a form invariant under the finite group G (Disc may vanish).
+pub fn symmetrise(f: &Form<Integer>, group: &[[i64; 4]]) -> Form<Integer> {
+    let mut out = Form::<Integer>::from_i64([0; 5]);
+    for g in group {
+        let h = f.act(&Gl2::new(g[0], g[1], g[2], g[3])).unwrap();
+        for k in 0..5 {
+            out.c[k] += &h.c[k];
+        }
+    }
+    out
+}
