@@ -22,6 +22,12 @@ impl Rng {
         (self.next() % (2 * m as u64 + 1)) as i64 - m
     }
 
+    /// A value with a random number of digits in `1..=max_digits`.
+    pub fn big_upto(&mut self, max_digits: u32) -> Integer {
+        let d = 1 + (self.next() % max_digits as u64) as u32;
+        self.big(d)
+    }
+
     /// Uniform in `-10^digits < v < 10^digits`, any size.
     pub fn big(&mut self, digits: u32) -> Integer {
         let mut v = Integer::new();
@@ -119,4 +125,30 @@ pub fn symmetrise(f: &Form<Integer>, group: &[[i64; 4]]) -> Form<Integer> {
         }
     }
     out
+}
+
+/// Run a PARI/GP script (Debian package pari-gp) and return its output lines. Fails the
+/// test with an instruction when `gp` is missing: CI installs it.
+pub fn gp_lines(script: &str) -> Vec<String> {
+    use std::io::Write;
+    use std::process::{Command, Stdio};
+    let mut child = Command::new("gp")
+        .args(["-q", "-f", "-D", "colors=no", "-s", "200000000"])
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .spawn()
+        .expect("PARI/GP's `gp` is needed for this test: apt-get install pari-gp");
+    child
+        .stdin
+        .take()
+        .unwrap()
+        .write_all(script.as_bytes())
+        .unwrap();
+    let out = child.wait_with_output().unwrap();
+    assert!(out.status.success(), "gp failed");
+    String::from_utf8(out.stdout)
+        .unwrap()
+        .lines()
+        .map(str::to_string)
+        .collect()
 }
