@@ -16,9 +16,11 @@
 pub mod canonical;
 pub mod class;
 pub mod covariant;
+pub mod enumerate;
 pub mod error;
 pub mod form;
 pub mod galois;
 pub mod int;
 pub mod poly;
 pub mod real;
+pub mod table;

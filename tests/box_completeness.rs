@@ -71,3 +71,41 @@ fn classes_below_height_1e4_stop_growing_with_the_box() {
     );
     assert!(small.is_subset(&large));
 }
+
+#[test]
+fn builder_rows_equal_the_brute_force_box() {
+    use qorbits::table::{enumerate_classes, Params};
+    let boxed = classes_in_box(10, 60);
+    for include_reducible in [true, false] {
+        let out = enumerate_classes(
+            &Params {
+                height: X,
+                include_reducible,
+            },
+            None,
+        )
+        .unwrap();
+        let built: BTreeSet<[i128; 5]> = out.rows.iter().map(|r| r.form.map(i128::from)).collect();
+        assert_eq!(built.len(), out.rows.len(), "a class was emitted twice");
+        let want: BTreeSet<[i128; 5]> = boxed
+            .iter()
+            .filter(|c| {
+                include_reducible
+                    || factor_pattern(&Form::new(**c)).unwrap() == FactorPattern::Irreducible
+            })
+            .cloned()
+            .collect();
+        let missing: Vec<_> = want.difference(&built).take(5).collect();
+        let extra: Vec<_> = built.difference(&want).take(5).collect();
+        assert!(
+            missing.is_empty() && extra.is_empty(),
+            "missing {missing:?}, extra {extra:?}"
+        );
+        eprintln!(
+            "builder at H < 1e4 (reducible: {include_reducible}): {} classes, {} candidates ({:.2} per class)",
+            out.rows.len(),
+            out.candidates,
+            out.candidates as f64 / out.rows.len() as f64
+        );
+    }
+}

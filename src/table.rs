@@ -1,0 +1,186 @@
+//! The rows of the table: enumerate → canonicalise → annotate, in parallel, then put in
+//! table order `(H4, I, J, a, b, c, d, e)` and labelled (DESIGN §4).
+//!
+//! Labels are `I.J.iN` for the N-th irreducible class with invariants (I, J) and `I.J.rN`
+//! for the N-th reducible one, counting in lexicographic order of the canonical forms. All
+//! classes with given (I, J) have the same height, so a label never depends on the height
+//! bound of the table, nor on whether reducible classes are included.
+//!
+//! ```
+//! use qorbits::table::{enumerate_classes, Params};
+//! let out = enumerate_classes(&Params { height: 2000, include_reducible: false }, None).unwrap();
+//! assert!(out.rows.iter().all(|r| r.h4 < 8000 && r.galois.is_some()));
+//! ```
+
+use crate::canonical::{is_canonical, stabiliser_of_member};
+use crate::enumerate::{HeightBound, Task};
+use crate::error::{Error, Result};
+use crate::form::{Form, Signature};
+use crate::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
+use indicatif::ProgressBar;
+use rayon::prelude::*;
+
+/// What a table is built from.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Params {
+    /// Classes with `H < height`.
+    pub height: i128,
+    /// Also the classes with a rational linear or quadratic factor (Disc ≠ 0).
+    pub include_reducible: bool,
+}
+
+/// One class: canonical representative and everything the kernel computes about it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct ClassRow {
+    /// Canonical representative `[a, b, c, d, e]`.
+    pub form: [i64; 5],
+    /// Invariant I.
+    pub i: i64,
+    /// Invariant J.
+    pub j: i64,
+    /// Discriminant.
+    pub disc: i64,
+    /// Four times the height.
+    pub h4: i64,
+    /// Real roots and definiteness.
+    pub signature: Signature,
+    /// Factorisation pattern over Q.
+    pub pattern: FactorPattern,
+    /// Galois group (irreducible classes).
+    pub galois: Option<GaloisGroup>,
+    /// Order of the PGL2(Z)-stabiliser.
+    pub stabiliser: u8,
+    /// Stable label (module doc).
+    pub label: String,
+}
+
+impl ClassRow {
+    /// The sort key of the table.
+    pub fn key(&self) -> (i64, i64, i64, [i64; 5]) {
+        (self.h4, self.i, self.j, self.form)
+    }
+}
+
+/// The classes of a table, in table order, and how many candidates were examined.
+#[derive(Debug)]
+pub struct Enumeration {
+    /// Rows in table order, labelled.
+    pub rows: Vec<ClassRow>,
+    /// Candidate forms examined (every form met by the loops).
+    pub candidates: u64,
+}
+
+fn annotate(f: &Form<i128>, include_reducible: bool) -> Result<Option<ClassRow>> {
+    let inv = f.invariants().ok_or(Error::Overflow)?;
+    let pattern = factor_pattern(f)
+        .or_else(|| factor_pattern(&f.to_big()))
+        .expect("big integers do not overflow");
+    if pattern != FactorPattern::Irreducible && !include_reducible {
+        return Ok(None);
+    }
+    let galois = galois_group(f)
+        .or_else(|| galois_group(&f.to_big()))
+        .expect("big integers do not overflow");
+    let signature = f.signature(&inv).ok_or(Error::Overflow)?;
+    let stabiliser = stabiliser_of_member(f)?.len() as u8;
+    let small = |v: i128| i64::try_from(v).map_err(|_| Error::Overflow);
+    Ok(Some(ClassRow {
+        form: f.c.map(|v| v as i64),
+        i: small(inv.i)?,
+        j: small(inv.j)?,
+        disc: small(inv.disc)?,
+        h4: small(inv.h4)?,
+        signature,
+        pattern,
+        galois,
+        stabiliser,
+        label: String::new(),
+    }))
+}
+
+fn run_task(
+    task: &Task,
+    hb: &HeightBound,
+    include_reducible: bool,
+) -> Result<(Vec<ClassRow>, u64)> {
+    let mut rows = Vec::new();
+    let mut failure = None;
+    let n = task.for_each(hb, |c| {
+        if failure.is_some() {
+            return;
+        }
+        let f = Form::<i128>::new(c.map(i128::from));
+        let disc_zero = f.invariants().is_none_or(|inv| inv.disc == 0);
+        if disc_zero {
+            return;
+        }
+        match is_canonical(&f).and_then(|yes| {
+            if yes {
+                annotate(&f, include_reducible)
+            } else {
+                Ok(None)
+            }
+        }) {
+            Ok(Some(row)) => rows.push(row),
+            Ok(None) => {}
+            Err(e) => failure = Some(e),
+        }
+    });
+    match failure {
+        Some(e) => Err(e),
+        None => Ok((rows, n)),
+    }
+}
+
+/// Put rows in table order and give them their labels.
+pub fn order_and_label(rows: &mut [ClassRow]) {
+    rows.sort_by_key(ClassRow::key);
+    let mut start = 0;
+    while start < rows.len() {
+        let mut end = start;
+        while end < rows.len() && (rows[end].i, rows[end].j) == (rows[start].i, rows[start].j) {
+            end += 1;
+        }
+        let (mut ni, mut nr) = (0, 0);
+        for r in &mut rows[start..end] {
+            let tag = if r.pattern == FactorPattern::Irreducible {
+                ni += 1;
+                format!("i{ni}")
+            } else {
+                nr += 1;
+                format!("r{nr}")
+            };
+            r.label = format!("{}.{}.{}", r.i, r.j, tag);
+        }
+        start = end;
+    }
+}
+
+/// Every class with `H < height` (irreducible, or all with `include_reducible`), in table
+/// order. Runs on the current rayon pool; `progress` advances once per task.
+pub fn enumerate_classes(params: &Params, progress: Option<&ProgressBar>) -> Result<Enumeration> {
+    let hb = HeightBound::new(params.height)?;
+    let tasks = Task::all(&hb, params.include_reducible);
+    if let Some(p) = progress {
+        p.set_length(tasks.len() as u64);
+    }
+    let parts: Vec<Result<(Vec<ClassRow>, u64)>> = tasks
+        .par_iter()
+        .map(|t| {
+            let r = run_task(t, &hb, params.include_reducible);
+            if let Some(p) = progress {
+                p.inc(1);
+            }
+            r
+        })
+        .collect();
+    let mut rows = Vec::new();
+    let mut candidates = 0;
+    for part in parts {
+        let (r, n) = part?;
+        rows.extend(r);
+        candidates += n;
+    }
+    order_and_label(&mut rows);
+    Ok(Enumeration { rows, candidates })
+}
