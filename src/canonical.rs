@@ -298,16 +298,23 @@ pub fn canonical(f: &Form<Integer>) -> Result<Canonical<Integer>> {
     canonical_in(f)
 }
 
+/// `z(f)` as f64, from the f64 path when it is reliable and from MPFR otherwise.
+pub fn approximate_point_f64<T: Int>(f: &Form<T>) -> Result<(f64, f64)> {
+    let p = approximate_point(f)?;
+    Ok((p.re.to_f64(), p.im.to_f64()))
+}
+
 /// Fast path for the builder: whether a table-sized form (Disc ≠ 0) is the canonical
 /// representative of its class. `Err(Overflow)` means: ask [`canonical`] instead.
 pub fn is_canonical(f: &Form<i128>) -> Result<bool> {
-    let hint = point_f64(&coeffs_f64(f));
+    is_canonical_with(f, point_f64(&coeffs_f64(f)))
+}
+
+/// [`is_canonical`] with the f64 point of `f` already computed (`None`: not reliable).
+pub fn is_canonical_with(f: &Form<i128>, hint: Option<Point<f64>>) -> Result<bool> {
     let z = match &hint {
         Some(p) => (p.x, p.y),
-        None => {
-            let p = approximate_point(f)?;
-            (p.re.to_f64(), p.im.to_f64())
-        }
+        None => approximate_point_f64(f)?,
     };
     if !near_f(z, ETA + WINDOW) || !in_f_eta(f, hint.as_ref())? {
         return Ok(false);

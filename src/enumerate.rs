@@ -22,8 +22,10 @@
 //! assert!(n > 0);
 //! ```
 
-use crate::canonical::ETA;
+use crate::canonical::{approximate_point_f64, ETA, WINDOW};
+use crate::covariant::{point_f64, Point};
 use crate::error::{Error, Result};
+use crate::form::{Form, Gl2};
 use crate::int::Int;
 
 /// The height condition `H < X` as exact integer bounds: `H4 < 4X` iff `|I| ≤ i_max` and
@@ -144,8 +146,10 @@ pub struct Task {
 }
 
 impl Task {
-    /// Every task for the bound, in a fixed order (a = 0 only with `include_reducible`:
-    /// canonical forms with a = 0 have the rational root at infinity).
+    /// Every task for the bound, in a fixed order. For `a ≠ 0`, `b` runs over the window
+    /// `−2|a| < b ≤ 2|a|`, one value per residue class mod 4a: the translation
+    /// `x ↦ x + ky` changes b by `4ak`, so every translation class has exactly one member
+    /// there. For `a = 0` (only with `include_reducible`) all `b ≠ 0` allowed by the bounds.
     pub fn all(hb: &HeightBound, include_reducible: bool) -> Vec<Task> {
         let k = hb.k();
         let ym = y_min();
@@ -159,10 +163,7 @@ impl Task {
                 let m = C[1] * k / ym;
                 int_range(-m, m)
             } else {
-                // b = g1 − 4·x0·a with |g1| ≤ C1·K/y0 ≤ C1·K/y_min.
-                let m = C[1] * k / ym;
-                let (s0, s1) = (-4.0 * a as f64 * -ETA, -4.0 * a as f64 * (0.5 + ETA));
-                int_range(s0.min(s1) - m, s0.max(s1) + m)
+                (-2 * a.abs() + 1, 2 * a.abs())
             };
             for b in lo..=hi {
                 if a == 0 && b == 0 {
@@ -174,13 +175,14 @@ impl Task {
         out
     }
 
-    /// Call `emit` with every candidate `[a, b, c, d, e]` of this task; each has `H < X`.
+    /// Call `emit` with every candidate `[a, b, c, d, e]` of this task: one member of each
+    /// translation class that may contain a canonical form with `H < X` (each candidate has
+    /// `H < X`; [`translates_into_strip`] then finds the member with `0 ≤ Re z ≤ ½`).
     /// Returns the number of candidates.
     pub fn for_each(&self, hb: &HeightBound, mut emit: impl FnMut([i64; 5])) -> u64 {
         let (a, b) = (self.a as i128, self.b as i128);
         let k = hb.k();
         let ym = y_min();
-        let (x_lo, x_hi) = (-ETA, 0.5 + ETA);
         // y0 ≤ y_max: from |a| = |g0| ≤ C0·K/y0² (a ≠ 0), or |b| = |g1| ≤ C1·K/y0 (a = 0).
         let y_max = if a != 0 {
             (C[0] * k / a.abs() as f64).sqrt()
@@ -191,38 +193,31 @@ impl Task {
             return 0;
         }
         let (af, bf) = (a as f64, b as f64);
-        // c = g2 − 3·x0·b − 6·x0²·a with |g2| ≤ C2·K.
-        let (qlo, qhi) = poly_range([0.0, -3.0 * bf, -6.0 * af, 0.0], x_lo, x_hi);
-        let (c_lo, c_hi) = int_range(qlo - C[2] * k, qhi + C[2] * k);
         let mut count = 0;
-        for c in c_lo..=c_hi {
-            let c = c as i128;
+        let mut per_c = |c: i128, x_lo: f64, x_hi: f64, count: &mut u64| {
             let cf = c as f64;
             // d = g3 − 2·x0·c − 3·x0²·b − 4·x0³·a with |g3| ≤ C3·K·y0.
             let (rlo, rhi) = poly_range([0.0, -2.0 * cf, -3.0 * bf, -4.0 * af], x_lo, x_hi);
             let m = C[3] * k * y_max;
             let (d_lo, d_hi) = int_range(rlo - m, rhi + m);
             let (mut d_lo, mut d_hi) = (d_lo as i128, d_hi as i128);
-            if a != 0 {
+            let (lo, hi) = if a != 0 {
                 // Syzygy: 27R² = 48·I·a²·P − P³ − 64·J·a³ ≤ 48·I_max·a²·|P| − P³ + 64·J_max·|a|³.
                 let p = 8 * a * c - 3 * b * b;
                 let rhs =
                     48 * hb.i_max * a * a * p.abs() - p * p * p + 64 * hb.j_max * a.abs().pow(3);
                 if rhs < 0 {
-                    continue;
+                    return;
                 }
                 let r_max = Int::isqrt(&(rhs / 27)).expect("non-negative");
                 // R = b³ + 8a²d − 4abc.
-                let base = b * b * b - 4 * a * b * c;
-                let (lo, hi) = linear_range(8 * a * a, base, -r_max, r_max);
-                d_lo = d_lo.max(lo);
-                d_hi = d_hi.min(hi);
+                linear_range(8 * a * a, b * b * b - 4 * a * b * c, -r_max, r_max)
             } else {
                 // I = c² − 3bd.
-                let (lo, hi) = linear_range(-3 * b, c * c, -hb.i_max, hb.i_max);
-                d_lo = d_lo.max(lo);
-                d_hi = d_hi.min(hi);
-            }
+                linear_range(-3 * b, c * c, -hb.i_max, hb.i_max)
+            };
+            d_lo = d_lo.max(lo);
+            d_hi = d_hi.min(hi);
             for d in d_lo..=d_hi {
                 // I = 12a·e + (c² − 3bd), J = (72ac − 27b²)·e + (9bcd − 27ad² − 2c³).
                 let (i0, j0) = (
@@ -245,18 +240,67 @@ impl Task {
                 } else if j0.abs() > hb.j_max {
                     continue;
                 }
-                if e_lo == i128::MIN || e_hi == i128::MAX {
-                    // a = 0 and 27b² = 0 cannot happen (b ≠ 0); a ≠ 0 bounds e through I.
-                    unreachable!("unbounded e range for a = {a}, b = {b}");
-                }
+                // a ≠ 0 bounds e through I; a = 0 has b ≠ 0, so 27b² ≠ 0 bounds it through J.
+                assert!(e_lo > i128::MIN && e_hi < i128::MAX, "unbounded e range");
                 for e in e_lo..=e_hi {
-                    count += 1;
+                    *count += 1;
                     emit([a as i64, b as i64, c as i64, d as i64, e as i64]);
                 }
+            }
+        };
+        if a != 0 {
+            // g1 = b + 4·x0·a with |g1| ≤ C1·K/y_min: the translate in the window has its
+            // point's real part x0 in this interval.
+            let m1 = C[1] * k / ym;
+            let (u, v) = ((-m1 - bf) / (4.0 * af), (m1 - bf) / (4.0 * af));
+            let (x_lo, x_hi) = (u.min(v), u.max(v));
+            // c = g2 − 3·x0·b − 6·x0²·a with |g2| ≤ C2·K.
+            let (qlo, qhi) = poly_range([0.0, -3.0 * bf, -6.0 * af, 0.0], x_lo, x_hi);
+            let (c_lo, c_hi) = int_range(qlo - C[2] * k, qhi + C[2] * k);
+            for c in c_lo..=c_hi {
+                per_c(c as i128, x_lo, x_hi, &mut count);
+            }
+        } else {
+            // a = 0: translation changes c by 3bk, so c runs over one window of length 3|b|;
+            // c = g2 − 3·x0·b with |g2| ≤ C2·K places x0.
+            let w = 3 * b.abs();
+            for c in (-(w / 2) + 1 - (w % 2))..=(w / 2) {
+                let cf = c as f64;
+                let m2 = C[2] * k;
+                let (u, v) = ((m2 - cf) / (3.0 * bf), (-m2 - cf) / (3.0 * bf));
+                per_c(c, u.min(v), u.max(v), &mut count);
             }
         }
         count
     }
+}
+
+/// The members of the translation class of `f` whose covariant point has real part in
+/// `[−η, ½ + η]` (at most one; up to two are returned when the point is within 10⁻⁶ of the
+/// strip's edge, to be decided exactly by the caller). Each comes with its moved point.
+pub fn translates_into_strip(f: &Form<i128>) -> Result<Vec<(Form<i128>, Option<Point<f64>>)>> {
+    let p = point_f64(&f.c.map(|v| v as f64));
+    let (x, y) = match &p {
+        Some(p) => (p.x, p.y),
+        None => approximate_point_f64(f)?,
+    };
+    if y < y_min() - WINDOW {
+        // |z| ≥ 1 − η forces Im z ≥ y_min in the strip, whatever the translation.
+        return Ok(Vec::new());
+    }
+    let lo = (x - 0.5 - ETA - WINDOW).ceil() as i64;
+    let hi = (x + ETA + WINDOW).floor() as i64;
+    let mut out = Vec::new();
+    for k in lo..=hi {
+        let t = f.act(&Gl2::new(1, 0, k, 1)).ok_or(Error::Overflow)?;
+        let moved = p.as_ref().map(|p| Point {
+            x: p.x - k as f64,
+            y: p.y,
+            err: p.err,
+        });
+        out.push((t, moved));
+    }
+    Ok(out)
 }
 
 #[cfg(test)]

@@ -21,6 +21,8 @@ pub mod error;
 pub mod form;
 pub mod galois;
 pub mod int;
+pub mod manifest;
 pub mod poly;
 pub mod real;
+pub mod store;
 pub mod table;

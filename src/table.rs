@@ -12,8 +12,8 @@
 //! assert!(out.rows.iter().all(|r| r.h4 < 8000 && r.galois.is_some()));
 //! ```
 
-use crate::canonical::{is_canonical, stabiliser_of_member};
-use crate::enumerate::{HeightBound, Task};
+use crate::canonical::{is_canonical_with, stabiliser_of_member};
+use crate::enumerate::{translates_into_strip, HeightBound, Task};
 use crate::error::{Error, Result};
 use crate::form::{Form, Signature};
 use crate::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
@@ -114,13 +114,15 @@ fn run_task(
         if disc_zero {
             return;
         }
-        match is_canonical(&f).and_then(|yes| {
-            if yes {
-                annotate(&f, include_reducible)
-            } else {
-                Ok(None)
+        let found = translates_into_strip(&f).and_then(|ts| {
+            for (t, hint) in ts {
+                if is_canonical_with(&t, hint)? {
+                    return annotate(&t, include_reducible);
+                }
             }
-        }) {
+            Ok(None)
+        });
+        match found {
             Ok(Some(row)) => rows.push(row),
             Ok(None) => {}
             Err(e) => failure = Some(e),

@@ -1,0 +1,1 @@
+//! Manifests, hashes and verification (to be written).

@@ -1,0 +1,1 @@
+//! SQLite schema and writer (to be written).
