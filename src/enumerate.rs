@@ -275,10 +275,13 @@ impl Task {
     }
 }
 
+/// A member of a translation class with its covariant point (when f64 is reliable).
+pub type Translate = (Form<i128>, Option<Point<f64>>);
+
 /// The members of the translation class of `f` whose covariant point has real part in
 /// `[−η, ½ + η]` (at most one; up to two are returned when the point is within 10⁻⁶ of the
 /// strip's edge, to be decided exactly by the caller). Each comes with its moved point.
-pub fn translates_into_strip(f: &Form<i128>) -> Result<Vec<(Form<i128>, Option<Point<f64>>)>> {
+pub fn translates_into_strip(f: &Form<i128>) -> Result<Vec<Translate>> {
     let p = point_f64(&f.c.map(|v| v as f64));
     let (x, y) = match &p {
         Some(p) => (p.x, p.y),

@@ -1,10 +1,21 @@
 //! The `qorbits` command line: argument parsing and output formatting over the library.
 
 use clap::{Parser, Subcommand};
-use qorbits::class::describe;
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use qorbits::class::{describe, height_decimal};
 use qorbits::error::Error;
 use qorbits::form::Form;
+use qorbits::manifest::{
+    default_manifest_path, manifest_for, read_manifest, verify, write_manifest,
+};
+use qorbits::report;
+use qorbits::store::{
+    classes_with_invariants, content_sha256, open_table, table_params, write_table,
+};
+use qorbits::table::{enumerate_classes, Params};
+use rug::ops::Pow;
 use rug::Integer;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 #[derive(Parser)]
@@ -29,6 +40,78 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Build the table of every class with H < X (SQLite file and manifest).
+    Build {
+        /// The height bound X: the table holds the classes with H < X (e.g. 1e6).
+        #[arg(long)]
+        height: String,
+        /// Output file (default qorbits-h<X>.sqlite, the manifest beside it).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Worker threads (default: all cores). The output does not depend on it.
+        #[arg(long)]
+        jobs: Option<usize>,
+        /// Also include the classes with a rational factor (Disc ≠ 0).
+        #[arg(long)]
+        include_reducible: bool,
+        /// Overwrite existing output files.
+        #[arg(long)]
+        force: bool,
+        /// No progress bar.
+        #[arg(long)]
+        quiet: bool,
+    },
+    /// Check a table against its manifest, or rebuild from a manifest and compare.
+    Verify {
+        /// The table (SQLite file).
+        file: Option<PathBuf>,
+        /// The manifest (default: beside the file).
+        #[arg(long)]
+        manifest: Option<PathBuf>,
+        /// Rebuild the table described by this manifest and compare the hashes.
+        #[arg(long, value_name = "MANIFEST", conflicts_with_all = ["file", "manifest"])]
+        rebuild: Option<PathBuf>,
+        /// Worker threads for --rebuild.
+        #[arg(long)]
+        jobs: Option<usize>,
+        /// No progress bar.
+        #[arg(long)]
+        quiet: bool,
+    },
+    /// List the classes with given invariants I and J.
+    Classes {
+        /// Invariant I (negative values as plain arguments).
+        #[arg(long = "I", allow_negative_numbers = true)]
+        i: String,
+        /// Invariant J (negative values as plain arguments).
+        #[arg(long = "J", allow_negative_numbers = true)]
+        j: String,
+        /// The table to query (default: qorbits-h1e6.sqlite).
+        #[arg(long)]
+        db: Option<PathBuf>,
+        /// JSON output (one array of objects).
+        #[arg(long, conflicts_with = "csv")]
+        json: bool,
+        /// CSV output with a header line.
+        #[arg(long)]
+        csv: bool,
+    },
+    /// Print a BibTeX entry and a CITATION.cff fragment for a table.
+    Cite {
+        /// The table (SQLite file).
+        file: PathBuf,
+    },
+    /// Counts by number of real roots against the asymptotic main terms.
+    Stats {
+        /// The table (SQLite file).
+        file: PathBuf,
+    },
+}
+
+fn parse_int(name: &str, s: &str) -> Result<Integer, Error> {
+    Integer::parse(s.trim())
+        .map(Integer::from)
+        .map_err(|_| Error::Input(format!("{name} '{s}' is not an integer")))
 }
 
 fn parse_form(args: &[String]) -> Result<Form<Integer>, Error> {
@@ -40,36 +123,262 @@ fn parse_form(args: &[String]) -> Result<Form<Integer>, Error> {
     }
     let mut c = Vec::with_capacity(5);
     for a in args {
-        let v = Integer::parse(a.trim())
-            .map(Integer::from)
-            .map_err(|_| Error::Input(format!("coefficient '{a}' is not an integer")))?;
-        c.push(v);
+        c.push(parse_int("coefficient", a)?);
     }
     Ok(Form::new(c.try_into().expect("five coefficients")))
 }
 
-fn run(cli: Cli) -> Result<(), Error> {
+/// `1e6`, `2.5e5`, `1000000`: an integer height bound.
+fn parse_height(s: &str) -> Result<i128, Error> {
+    let bad = || {
+        Error::Input(format!(
+            "height '{s}' is not a positive integer (write e.g. 1e6 or 1000000)"
+        ))
+    };
+    let t = s.trim().to_ascii_lowercase();
+    let (mant, exp) = match t.split_once('e') {
+        Some((m, e)) => (m.to_string(), e.parse::<u32>().map_err(|_| bad())?),
+        None => (t.clone(), 0),
+    };
+    let (int, frac) = mant.split_once('.').unwrap_or((&mant, ""));
+    if int.is_empty() && frac.is_empty()
+        || !int.chars().chain(frac.chars()).all(|c| c.is_ascii_digit())
+    {
+        return Err(bad());
+    }
+    if frac.len() as u32 > exp && frac.trim_end_matches('0').len() as u32 > exp {
+        return Err(bad());
+    }
+    let digits = format!("{int}{frac}");
+    let shift = exp.checked_sub(frac.len() as u32);
+    let v = Integer::parse(if digits.is_empty() { "0" } else { &digits }).map_err(|_| bad())?;
+    let mut v = Integer::from(v);
+    match shift {
+        Some(k) => v *= Integer::from(10).pow(k),
+        None => v /= Integer::from(10).pow(frac.len() as u32 - exp),
+    }
+    let v = v.to_i128().ok_or_else(bad)?;
+    if v < 1 {
+        return Err(bad());
+    }
+    Ok(v)
+}
+
+fn progress_bar(quiet: bool, what: &str) -> ProgressBar {
+    if quiet {
+        return ProgressBar::hidden();
+    }
+    let p = ProgressBar::with_draw_target(Some(0), ProgressDrawTarget::stderr());
+    p.set_style(
+        ProgressStyle::with_template("{msg} [{bar:40}] {pos}/{len} tasks, {elapsed} (eta {eta})")
+            .expect("valid template")
+            .progress_chars("=> "),
+    );
+    p.set_message(what.to_string());
+    p
+}
+
+fn pool(jobs: Option<usize>) -> Result<rayon::ThreadPool, Error> {
+    let mut b = rayon::ThreadPoolBuilder::new();
+    if let Some(n) = jobs {
+        if n == 0 {
+            return Err(Error::Input("--jobs must be at least 1".into()));
+        }
+        b = b.num_threads(n);
+    }
+    b.build()
+        .map_err(|e| Error::Input(format!("cannot start worker threads: {e}")))
+}
+
+fn refuse_existing(path: &Path, force: bool) -> Result<(), Error> {
+    if path.exists() && !force {
+        return Err(Error::Io(format!(
+            "{} already exists; pass --force to overwrite it",
+            path.display()
+        )));
+    }
+    Ok(())
+}
+
+fn build(
+    params: &Params,
+    out: &Path,
+    jobs: Option<usize>,
+    force: bool,
+    quiet: bool,
+) -> Result<(), Error> {
+    let manifest_path = default_manifest_path(out);
+    refuse_existing(out, force)?;
+    refuse_existing(&manifest_path, force)?;
+    let bar = progress_bar(quiet, "enumerating");
+    let rows = pool(jobs)?.install(|| enumerate_classes(params, Some(&bar)))?;
+    bar.finish_and_clear();
+    write_table(out, params, &rows.rows, force)?;
+    let m = manifest_for(out)?;
+    write_manifest(&manifest_path, &m, force)?;
+    println!("wrote {} ({} classes)", out.display(), rows.rows.len());
+    println!("wrote {}", manifest_path.display());
+    println!("content sha256 {}", m.content_sha256);
+    Ok(())
+}
+
+fn run(cli: Cli) -> Result<ExitCode, Error> {
     match cli.command {
         Command::Reduce { coefficients, json } => {
-            let f = parse_form(&coefficients)?;
-            let d = describe(&f)?;
+            let d = describe(&parse_form(&coefficients)?)?;
             if json {
                 println!("{}", d.to_json());
             } else {
                 print!("{}", d.to_text());
             }
-            Ok(())
+        }
+        Command::Build {
+            height,
+            out,
+            jobs,
+            include_reducible,
+            force,
+            quiet,
+        } => {
+            let params = Params {
+                height: parse_height(&height)?,
+                include_reducible,
+            };
+            let out = out.unwrap_or_else(|| PathBuf::from(report::default_file_name(&params)));
+            build(&params, &out, jobs, force, quiet)?;
+        }
+        Command::Verify {
+            file,
+            manifest,
+            rebuild,
+            jobs,
+            quiet,
+        } => {
+            let checks = match (file, rebuild) {
+                (_, Some(m)) => {
+                    let man = read_manifest(&m)?;
+                    let params = Params {
+                        height: man.parameters.height,
+                        include_reducible: man.parameters.include_reducible,
+                    };
+                    let dir = std::env::temp_dir()
+                        .join(format!("qorbits-rebuild-{}", std::process::id()));
+                    std::fs::create_dir_all(&dir)
+                        .map_err(|e| Error::Io(format!("{}: {e}", dir.display())))?;
+                    let out = dir.join(&man.file.name);
+                    let result =
+                        build(&params, &out, jobs, true, quiet).map(|()| verify(&out, &man));
+                    let _ = std::fs::remove_dir_all(&dir);
+                    result?
+                }
+                (Some(f), None) => {
+                    let m = manifest.unwrap_or_else(|| default_manifest_path(&f));
+                    verify(&f, &read_manifest(&m)?)
+                }
+                (None, None) => {
+                    return Err(Error::Input(
+                        "give a table FILE or --rebuild MANIFEST".into(),
+                    ));
+                }
+            };
+            let failed = checks.iter().filter(|c| !c.ok).count();
+            for c in &checks {
+                println!(
+                    "{} {:<22} {}",
+                    if c.ok { "ok  " } else { "FAIL" },
+                    c.name,
+                    c.detail
+                );
+            }
+            if failed == 0 {
+                println!("verified: all {} checks passed", checks.len());
+            } else {
+                println!("verification FAILED: {failed} of {} checks", checks.len());
+                return Ok(ExitCode::from(1));
+            }
+        }
+        Command::Classes {
+            i,
+            j,
+            db,
+            json,
+            csv,
+        } => {
+            let (i, j) = (parse_int("I", &i)?, parse_int("J", &j)?);
+            let db = db.unwrap_or_else(|| PathBuf::from("qorbits-h1e6.sqlite"));
+            let conn = open_table(&db)?;
+            let params = table_params(&conn)?;
+            let (i64v, j64v) = match (i.to_i64(), j.to_i64()) {
+                (Some(a), Some(b)) => (a, b),
+                _ => {
+                    return Err(Error::Input(format!(
+                        "(I, J) = ({i}, {j}) is far above the table's height bound"
+                    )))
+                }
+            };
+            let h4 = qorbits::form::invariants_from_ij(i.clone(), j.clone())
+                .expect("big integers")
+                .h4;
+            if h4 >= 4 * params.height {
+                return Err(Error::Input(format!(
+                    "(I, J) = ({i}, {j}) has H = {}, not below the table's bound {} ({})",
+                    height_decimal(&h4),
+                    params.height,
+                    db.display()
+                )));
+            }
+            let rows = classes_with_invariants(&conn, i64v, j64v)?;
+            print!(
+                "{}",
+                report::render_rows(
+                    &rows,
+                    if json {
+                        report::Format::Json
+                    } else if csv {
+                        report::Format::Csv
+                    } else {
+                        report::Format::Text
+                    }
+                )
+            );
+        }
+        Command::Cite { file } => {
+            let conn = open_table(&file)?;
+            let params = table_params(&conn)?;
+            let hash = content_sha256(&conn)?;
+            print!("{}", report::citation(&params, &hash, &file));
+        }
+        Command::Stats { file } => {
+            let conn = open_table(&file)?;
+            print!("{}", report::stats(&conn)?);
         }
     }
+    Ok(ExitCode::SUCCESS)
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match run(cli) {
-        Ok(()) => ExitCode::SUCCESS,
+        Ok(code) => code,
         Err(e) => {
             eprintln!("qorbits: {e}");
             ExitCode::from(2)
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::parse_height;
+
+    #[test]
+    fn heights_in_e_notation() {
+        assert_eq!(parse_height("1e6").unwrap(), 1_000_000);
+        assert_eq!(parse_height("2.5e5").unwrap(), 250_000);
+        assert_eq!(parse_height("1000").unwrap(), 1000);
+        assert_eq!(parse_height("1E8").unwrap(), 100_000_000);
+        for bad in ["1.5", "-3", "0", "abc", "1e", "e5", ""] {
+            assert!(parse_height(bad).is_err(), "{bad}");
         }
     }
 }

@@ -1,0 +1,10 @@
+-- qorbits table, schema version 1: the indexes, built after the data so that the file
+-- layout depends only on the rows. The UNIQUE indexes are the table's keys.
+
+CREATE INDEX classes_ij ON classes (I, J);
+CREATE INDEX classes_h4 ON classes (h4);
+CREATE INDEX classes_disc ON classes (disc);
+CREATE UNIQUE INDEX classes_label ON classes (label);
+CREATE UNIQUE INDEX pairs_ij ON pairs (I, J);
+CREATE INDEX pairs_h4 ON pairs (h4);
+CREATE UNIQUE INDEX meta_key ON meta (key);

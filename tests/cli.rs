@@ -1,0 +1,133 @@
+//! The command line as a user meets it: outputs, exit codes and one-line errors.
+
+use std::path::PathBuf;
+use std::process::{Command, Output};
+
+fn qorbits(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_qorbits"))
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+fn text(o: &Output) -> (String, String) {
+    (
+        String::from_utf8_lossy(&o.stdout).into_owned(),
+        String::from_utf8_lossy(&o.stderr).into_owned(),
+    )
+}
+
+fn tmpdir(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("qorbits-cli-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+#[test]
+fn reduce_prints_the_class_and_json() {
+    let o = qorbits(&["reduce", "2", "-7", "4", "13", "-6"]);
+    assert!(o.status.success());
+    let (out, _) = text(&o);
+    assert!(out.contains("canonical    (2, -1, -5, -8, 6)"), "{out}");
+    assert!(out.contains("Galois group S4"), "{out}");
+    let o = qorbits(&["reduce", "--json", "2", "-7", "4", "13", "-6"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["canonical"], serde_json::json!([2, -1, -5, -8, 6]));
+    assert_eq!(v["I"], 145);
+}
+
+#[test]
+fn reduce_refuses_bad_input_with_one_line_and_code_2() {
+    for args in [
+        vec!["reduce", "1", "2", "3"],
+        vec!["reduce", "1", "2", "x", "4", "5"],
+        vec!["reduce", "1", "2", "1", "0", "0"], // (x² + xy)²-type: Disc = 0
+        vec!["reduce", "1.5", "2", "1", "0", "0"],
+    ] {
+        let o = qorbits(&args);
+        let (_, err) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{args:?}");
+        assert_eq!(err.trim().lines().count(), 1, "{args:?}: {err}");
+        assert!(!err.contains("panicked"));
+    }
+    let (_, err) = text(&qorbits(&["reduce", "1", "2", "1", "0", "0"]));
+    assert!(err.contains("discriminant 0"), "{err}");
+}
+
+#[test]
+fn build_verify_query_cite_stats() {
+    let d = tmpdir("build");
+    let db = d.join("t.sqlite");
+    let dbs = db.to_str().unwrap();
+    let o = qorbits(&["build", "--height", "2e4", "--out", dbs, "--quiet"]);
+    assert!(o.status.success(), "{:?}", text(&o));
+    assert!(d.join("t.manifest.json").exists());
+    // An existing output is refused without --force, and nothing is touched.
+    let before = std::fs::read(&db).unwrap();
+    let o = qorbits(&["build", "--height", "2e4", "--out", dbs, "--quiet"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(text(&o).1.contains("--force"));
+    assert_eq!(std::fs::read(&db).unwrap(), before);
+    // verify: ok, then one flipped byte is caught.
+    let o = qorbits(&["verify", dbs]);
+    assert!(o.status.success(), "{:?}", text(&o));
+    let mut bytes = before.clone();
+    let k = bytes.len() / 2;
+    bytes[k] ^= 1;
+    let bad = d.join("bad.sqlite");
+    std::fs::write(&bad, &bytes).unwrap();
+    let o = qorbits(&[
+        "verify",
+        bad.to_str().unwrap(),
+        "--manifest",
+        d.join("t.manifest.json").to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(1), "{:?}", text(&o));
+    // A file that is not SQLite at all.
+    let junk = d.join("junk.sqlite");
+    std::fs::write(&junk, b"this is not a database").unwrap();
+    let o = qorbits(&[
+        "classes",
+        "--I",
+        "0",
+        "--J",
+        "0",
+        "--db",
+        junk.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(!text(&o).1.contains("panicked"));
+    // classes from the index, negative values as plain arguments.
+    let rows = qorbits(&["classes", "--I", "-3", "--J", "-27", "--db", dbs, "--json"]);
+    let rows: serde_json::Value = serde_json::from_slice(&rows.stdout).unwrap();
+    let all = qorbits(&["classes", "--I", "21", "--J", "-189", "--db", dbs, "--csv"]);
+    assert!(text(&all).0.starts_with("label,a,b,c,d,e,I,J"));
+    assert!(rows.is_array());
+    // cite names the content hash of the manifest.
+    let m: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(d.join("t.manifest.json")).unwrap()).unwrap();
+    let cite = text(&qorbits(&["cite", dbs])).0;
+    assert!(
+        cite.contains(m["content_sha256"].as_str().unwrap()) && cite.contains("@misc{"),
+        "{cite}"
+    );
+    let stats = text(&qorbits(&["stats", dbs])).0;
+    assert!(stats.contains("main term"), "{stats}");
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn build_into_a_missing_directory_fails_cleanly() {
+    let o = qorbits(&[
+        "build",
+        "--height",
+        "1e3",
+        "--out",
+        "/nonexistent-dir/x.sqlite",
+        "--quiet",
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    let (_, err) = text(&o);
+    assert_eq!(err.trim().lines().count(), 1, "{err}");
+}
