@@ -6,7 +6,7 @@
 //! `QORBITS_BENCH_HEIGHTS=1e5,1e6`).
 
 use qorbits::store::write_table;
-use qorbits::table::{enumerate_classes, ClassRow, Params};
+use qorbits::table::{enumerate_classes, enumerate_classes_with, ClassRow, Params};
 use rusqlite::{params, Connection};
 use std::time::Instant;
 
@@ -85,6 +85,7 @@ fn main() {
         "ratio"
     );
     let mut pts = Vec::new();
+    let mut local_figures = Vec::new();
     for x in heights {
         let params = Params {
             height: x,
@@ -98,7 +99,19 @@ fn main() {
         write_table(&path, &params, &out.rows, true).unwrap();
         let t_write = t.elapsed().as_secs_f64();
         let t_plain = plain_insert(&out.rows, &dir.join("plain.sqlite"));
+        // The same build without local data, in the same run.
+        let t = Instant::now();
+        let bare = enumerate_classes_with(&params, None, false).unwrap();
+        write_table(&path, &params, &bare.rows, true).unwrap();
+        let t_bare = t.elapsed().as_secs_f64();
         let total = t_enum + t_write;
+        local_figures.push((
+            x,
+            total,
+            t_bare,
+            out.rows.len(),
+            out.rows.iter().map(|r| r.local.len()).sum::<usize>(),
+        ));
         println!(
             "{x:>10} {:>10} {:>12.0} {:>10.2} {t_enum:>9.2} {t_write:>9.2} {t_plain:>9.2} {:>9.2}",
             out.rows.len(),
@@ -118,6 +131,16 @@ fn main() {
         let slope = pts.iter().map(|p| (p.0 - mx) * (p.1 - my)).sum::<f64>()
             / pts.iter().map(|p| (p.0 - mx).powi(2)).sum::<f64>();
         println!("fitted exponent of build time against X: {slope:.3}");
+    }
+    let threads = rayon::current_num_threads() as f64;
+    for (x, total, bare, classes, places) in local_figures {
+        println!(
+            "X = {x}: build {total:.2} s with local data, {bare:.2} s without: ratio {:.2}; \
+             local data {:.1} µs of CPU per class ({:.2} places per class)",
+            total / bare,
+            1e6 * (total - bare) * threads / classes as f64,
+            places as f64 / classes as f64
+        );
     }
     let _ = std::fs::remove_dir_all(&dir);
 }

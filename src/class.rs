@@ -14,6 +14,8 @@ use crate::canonical::{canonical, Canonical};
 use crate::error::Result;
 use crate::form::{Form, Invariants, Signature};
 use crate::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
+use crate::local::{local_data, LocalData};
+use crate::primes::try_factor;
 use rug::Integer;
 use serde_json::{json, Number, Value};
 
@@ -32,6 +34,11 @@ pub struct Description {
     pub pattern: FactorPattern,
     /// Galois group (irreducible forms only).
     pub galois: Option<GaloisGroup>,
+    /// Local data at every prime dividing 2·Disc and at infinity; `None` when Disc could not
+    /// be factored within the time budget (huge discriminants only).
+    pub local: Option<LocalData>,
+    /// The factorisation of Disc, if found.
+    pub disc_factors: Option<Vec<(Integer, u32)>>,
 }
 
 /// Describe the class of `f`; fails for Disc = 0 (and on numerical failure).
@@ -44,6 +51,11 @@ pub fn describe(f: &Form<Integer>) -> Result<Description> {
         .expect("big integers do not overflow");
     let pattern = factor_pattern(g).expect("big integers do not overflow");
     let galois = galois_group(g).expect("big integers do not overflow");
+    // A few seconds of rho at most; discriminants up to 10²⁴ take milliseconds.
+    let disc_factors = try_factor(&invariants.disc, 4_000_000);
+    let local = disc_factors
+        .as_ref()
+        .map(|fac| local_data(g, fac, signature));
     Ok(Description {
         input: f.clone(),
         canonical,
@@ -51,6 +63,8 @@ pub fn describe(f: &Form<Integer>) -> Result<Description> {
         signature,
         pattern,
         galois,
+        local,
+        disc_factors,
     })
 }
 
@@ -79,6 +93,27 @@ pub fn height_decimal(h4: &Integer) -> String {
 }
 
 impl Description {
+    /// `-1 * 2^2 * 3 * …`, if Disc was factored.
+    pub fn factors_text(&self) -> Option<String> {
+        let f = self.disc_factors.as_ref()?;
+        let mut parts: Vec<String> = Vec::new();
+        if self.invariants.disc < 0 {
+            parts.push("-1".into());
+        }
+        parts.extend(f.iter().map(|(p, e)| {
+            if *e == 1 {
+                p.to_string()
+            } else {
+                format!("{p}^{e}")
+            }
+        }));
+        Some(if parts.is_empty() {
+            "1".into()
+        } else {
+            parts.join(" * ")
+        })
+    }
+
     /// One JSON object with every field (integers exact).
     pub fn to_json(&self) -> Value {
         let gamma = &self.canonical.gamma.m;
@@ -100,6 +135,15 @@ impl Description {
             "stabiliser": self.canonical.stabiliser.iter().map(|g| {
                 Value::Array(g.m.iter().map(json_int).collect())
             }).collect::<Vec<_>>(),
+            "disc_factors": self.factors_text(),
+            "els": self.local.as_ref().map(|l| l.els()),
+            "insoluble_at": self.local.as_ref().map(|l| l.failures()),
+            "local": self.local.as_ref().map(|l| l.places.iter().map(|p| json!({
+                "place": p.prime.as_ref().map(|q| q.to_string()).unwrap_or_else(|| "inf".into()),
+                "v_disc": p.v_disc,
+                "pattern": p.pattern,
+                "soluble": p.soluble,
+            })).collect::<Vec<_>>()),
         })
     }
 
@@ -130,7 +174,16 @@ impl Description {
             ),
             ("I", self.invariants.i.to_string()),
             ("J", self.invariants.j.to_string()),
-            ("Disc", self.invariants.disc.to_string()),
+            (
+                "Disc",
+                match self.factors_text() {
+                    Some(t) => format!("{} = {t}", self.invariants.disc),
+                    None => format!(
+                        "{} (not factored within the time budget)",
+                        self.invariants.disc
+                    ),
+                },
+            ),
             (
                 "H",
                 format!(
@@ -149,7 +202,37 @@ impl Description {
                 "stabiliser",
                 format!("order {} in PGL2(Z): {}", stab.len(), stab.join(", ")),
             ),
+            (
+                "local",
+                match &self.local {
+                    None => "not computed: Disc could not be factored".to_string(),
+                    Some(l) if l.els() => "everywhere locally soluble".to_string(),
+                    Some(l) => format!("no local point at {}", l.failures().join(", ")),
+                },
+            ),
         ];
-        rows.iter().map(|(k, v)| format!("{k:<13}{v}\n")).collect()
+        let mut out: String = rows.iter().map(|(k, v)| format!("{k:<13}{v}\n")).collect();
+        for p in self.local.iter().flat_map(|l| &l.places) {
+            let place = p
+                .prime
+                .as_ref()
+                .map(|q| format!("p = {q}"))
+                .unwrap_or_else(|| "p = inf".into());
+            let v = p
+                .v_disc
+                .map(|v| format!("v(Disc) = {v}, "))
+                .unwrap_or_default();
+            let what = if p.prime.is_some() {
+                "mod p"
+            } else {
+                "signature"
+            };
+            out.push_str(&format!(
+                "  {place:<11}{v}{what} {}, {}\n",
+                p.pattern,
+                if p.soluble { "soluble" } else { "NOT soluble" }
+            ));
+        }
+        out
     }
 }

@@ -228,15 +228,13 @@ impl<T: Int> Form<T> {
     }
 }
 
-/// Disc and H4 from I and J: `27·Disc = 4I³ − J²`, `H4 = max(4|I|³, J²)`.
+/// Disc and H4 from I and J: `27·Disc = 4I³ − J²`, `H4 = max(4|I|³, J²)`. `None` on
+/// overflow, or when 27 ∤ 4I³ − J² (then no integral form has these invariants).
 pub fn invariants_from_ij<T: Int>(i: T, j: T) -> Option<Invariants<T>> {
     let i3 = i.mul(&i)?.mul(&i)?;
     let j2 = j.mul(&j)?;
     let four_i3 = i3.mul_i64(4)?;
-    let disc = four_i3
-        .sub(&j2)?
-        .div_exact(&T::from_i64(27))
-        .expect("27 divides 4I^3 - J^2 for integral forms");
+    let disc = four_i3.sub(&j2)?.div_exact(&T::from_i64(27))?;
     let four_abs_i3 = four_i3.abs()?;
     let h4 = if four_abs_i3 > j2 { four_abs_i3 } else { j2 };
     Some(Invariants { i, j, disc, h4 })

@@ -19,6 +19,7 @@ pub mod covariant;
 pub mod enumerate;
 pub mod error;
 pub mod form;
+pub mod fp;
 pub mod galois;
 pub mod int;
 pub mod local;

@@ -245,8 +245,45 @@ fn is_constant_times_square(g: &[Integer], p: &Integer) -> bool {
 // ---------------------------------------------------------------------------------------
 // The factorisation pattern of f mod p.
 
+/// Distinct roots mod p of `g` (ascending, reduced, non-zero): on machine integers for
+/// `p < 2³²` ([`crate::fp::roots`]), else by [`roots_mod_p`].
+fn roots_any(g: &[Integer], p: &Integer) -> Vec<Integer> {
+    match p.to_u64().filter(|q| *q < 1 << 32) {
+        Some(q) => {
+            let c: Vec<u64> = g
+                .iter()
+                .map(|x| x.to_u64().expect("reduced mod p"))
+                .collect();
+            crate::fp::roots(&c, q)
+                .into_iter()
+                .map(Integer::from)
+                .collect()
+        }
+        None => roots_mod_p(g, p),
+    }
+}
+
+/// The discriminant of the quartic `g` (ascending) mod p, from the invariants of the binary
+/// form: `27·Disc = 4I³ − J²` (DESIGN §2).
+fn quartic_disc_mod_p(g: &[Integer], p: &Integer) -> Integer {
+    let f = Form::new([
+        g[4].clone(),
+        g[3].clone(),
+        g[2].clone(),
+        g[1].clone(),
+        g[0].clone(),
+    ]);
+    md(&f.invariants().expect("big integers").disc, p)
+}
+
 /// Degrees (with multiplicities) of the irreducible factors of f mod p, a root at
 /// infinity included, e.g. `1 1^3`, `2 2`, `1^2 2`; `0` when f vanishes mod p.
+///
+/// A quartic without roots mod p is `2^2` when it has a repeated factor; otherwise, for odd
+/// p, `2 2` or `4` according as its discriminant is a square mod p or not (Stickelberger:
+/// the discriminant of a squarefree polynomial of degree n is a square iff the number of
+/// its irreducible factors is ≡ n mod 2); over F_2 the only rootless quartic products of
+/// quadratics are squares, so it is `4`.
 pub fn pattern_mod_p(f: &Form<Integer>, p: &Integer) -> String {
     let c: Vec<Integer> = f.c.iter().map(|x| md(x, p)).collect();
     if c.iter().all(|x| *x == 0) {
@@ -259,7 +296,7 @@ pub fn pattern_mod_p(f: &Form<Integer>, p: &Integer) -> String {
     if inf > 0 {
         parts.push((1, inf));
     }
-    for r in roots_mod_p(&g, p) {
+    for r in roots_any(&g, p) {
         let lin = vec![md(&Integer::from(-&r), p), Integer::from(1)];
         let mut m = 0;
         while g.len() > 1 && prem(&g, &lin, p).is_empty() {
@@ -272,19 +309,16 @@ pub fn pattern_mod_p(f: &Form<Integer>, p: &Integer) -> String {
         0 => {}
         2 | 3 => parts.push((g.len() - 1, 1)),
         4 => {
+            // No linear factor: a repeated factor makes it the square of a quadratic (in
+            // characteristic 2 the derivative of a square vanishes, and gcd(g, 0) = g).
             let d = pgcd(&g, &deriv(&g, p), p);
-            if d.len() == 3 {
+            if d.len() > 1 {
                 parts.push((2, 2));
+            } else if *p != 2 && legendre_square(&quartic_disc_mod_p(&g, p), p) {
+                parts.push((2, 1));
+                parts.push((2, 1));
             } else {
-                let x = vec![Integer::new(), Integer::from(1)];
-                let p2 = Integer::from(p * p);
-                let xq = ppow(&x, &p2, &g, p);
-                if pgcd(&g, &psub(&xq, &x, p), p).len() == 5 {
-                    parts.push((2, 1));
-                    parts.push((2, 1));
-                } else {
-                    parts.push((4, 1));
-                }
+                parts.push((4, 1));
             }
         }
         _ => unreachable!("degree at most 4"),
@@ -419,7 +453,7 @@ fn large_prime_split(
             return true;
         }
     }
-    roots_mod_p(&gbar, p)
+    roots_any(&gbar, p)
         .into_iter()
         .any(|r| disc_soluble(g, p, x0 + (pk * r), k + 1))
 }

@@ -95,6 +95,9 @@ enum Command {
         /// CSV output with a header line.
         #[arg(long)]
         csv: bool,
+        /// Only the everywhere locally soluble classes.
+        #[arg(long)]
+        els: bool,
     },
     /// Print a BibTeX entry and a CITATION.cff fragment for a table.
     Cite {
@@ -303,8 +306,14 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
             db,
             json,
             csv,
+            els,
         } => {
             let (i, j) = (parse_int("I", &i)?, parse_int("J", &j)?);
+            if !qorbits::form::eligible(&i, &j) {
+                return Err(Error::Input(format!(
+                    "no integral form has invariants (I, J) = ({i}, {j}): (I, J) must satisfy I ≡ 0 (mod 3) and J ≡ 0 (mod 27), or I ≡ 1, 4, 7 (mod 9) and J ≡ ±2, ±16, ±7 (mod 27) respectively"
+                )));
+            }
             let db = db.unwrap_or_else(|| PathBuf::from("qorbits-h1e6.sqlite"));
             let conn = open_table(&db)?;
             let params = table_params(&conn)?;
@@ -316,9 +325,14 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
                     )))
                 }
             };
-            let h4 = qorbits::form::invariants_from_ij(i.clone(), j.clone())
-                .expect("big integers")
-                .h4;
+            let inv =
+                qorbits::form::invariants_from_ij(i.clone(), j.clone()).expect("eligible pair");
+            if inv.disc == 0 {
+                return Err(Error::Input(format!(
+                    "(I, J) = ({i}, {j}) has 4I³ = J², so Disc = 0: such forms have a repeated root and are outside the table"
+                )));
+            }
+            let h4 = inv.h4;
             if h4 >= 4 * params.height {
                 return Err(Error::Input(format!(
                     "(I, J) = ({i}, {j}) has H = {}, not below the table's bound {} ({})",
@@ -327,7 +341,10 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
                     db.display()
                 )));
             }
-            let rows = classes_with_invariants(&conn, i64v, j64v)?;
+            let mut rows = classes_with_invariants(&conn, i64v, j64v)?;
+            if els {
+                rows.retain(|r| r.els());
+            }
             print!(
                 "{}",
                 report::render_rows(

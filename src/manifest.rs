@@ -60,6 +60,8 @@ pub struct Counts {
     pub by_signature: BTreeMap<String, u64>,
     /// Classes by Galois group (`S4` … `V4`) and `reducible`.
     pub by_galois: BTreeMap<String, u64>,
+    /// Everywhere locally soluble classes.
+    pub els: u64,
 }
 
 /// The file itself.
@@ -139,6 +141,7 @@ fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
         pairs: one("SELECT count(*) FROM pairs")?,
         by_signature,
         by_galois,
+        els: one("SELECT count(*) FROM classes WHERE els = 1")?,
     })
 }
 
@@ -257,6 +260,7 @@ pub fn verify(db: &Path, m: &Manifest) -> Vec<Check> {
             ));
             out.push(check("classes", m.counts.classes, got.counts.classes));
             out.push(check("pairs", m.counts.pairs, got.counts.pairs));
+            out.push(check("els classes", m.counts.els, got.counts.els));
             for (k, v) in &m.counts.by_signature {
                 out.push(check(
                     &format!("signature {k}"),

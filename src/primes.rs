@@ -57,8 +57,9 @@ pub fn is_prime(n: &Integer) -> bool {
     true
 }
 
-/// A non-trivial factor of the odd composite `n` (Pollard's rho, Brent's variant).
-fn rho(n: &Integer) -> Integer {
+/// A non-trivial factor of the odd composite `n` (Pollard's rho, Brent's variant), or
+/// `None` once `budget` iterations are spent.
+fn rho(n: &Integer, budget: &mut u64) -> Option<Integer> {
     for c in 1u32.. {
         let f = |x: &Integer| (Integer::from(x.square_ref()) + c) % n;
         let (mut x, mut y, mut g) = (Integer::from(2), Integer::from(2), Integer::from(1));
@@ -66,6 +67,10 @@ fn rho(n: &Integer) -> Integer {
         let mut r: u64 = 1;
         let mut ys = Integer::new();
         while g == 1 {
+            if *budget < r {
+                return None;
+            }
+            *budget -= r;
             x = y.clone();
             for _ in 0..r {
                 y = f(&y);
@@ -93,7 +98,7 @@ fn rho(n: &Integer) -> Integer {
             }
         }
         if g != *n {
-            return g;
+            return Some(g);
         }
     }
     unreachable!("rho always finds a factor for some constant")
@@ -102,10 +107,17 @@ fn rho(n: &Integer) -> Integer {
 /// The prime factorisation of `|n|` as `(prime, exponent)` pairs in increasing order
 /// (empty for |n| ≤ 1).
 pub fn factor(n: &Integer) -> Vec<(Integer, u32)> {
+    try_factor(n, u64::MAX).expect("an unlimited budget always finishes")
+}
+
+/// [`factor`] within a budget of rho iterations (about 10⁶ per second); `None` when the
+/// budget runs out (only for numbers with two large prime factors, far beyond 10²⁴).
+pub fn try_factor(n: &Integer, budget: u64) -> Option<Vec<(Integer, u32)>> {
+    let mut budget = budget;
     let mut m = n.clone().abs();
     let mut out: Vec<(Integer, u32)> = Vec::new();
     if m <= 1 {
-        return out;
+        return Some(out);
     }
     let push =
         |p: Integer, out: &mut Vec<(Integer, u32)>| match out.iter_mut().find(|(q, _)| *q == p) {
@@ -133,13 +145,13 @@ pub fn factor(n: &Integer) -> Vec<(Integer, u32)> {
             stack.push(r.clone());
             stack.push(r);
         } else {
-            let d = rho(&x);
+            let d = rho(&x, &mut budget)?;
             stack.push(Integer::from(&x / &d));
             stack.push(d);
         }
     }
     out.sort();
-    out
+    Some(out)
 }
 
 /// `p1^e1 * p2^e2 * …`, with a leading `-1 *` for negative n; `1` or `-1` for units.

@@ -78,6 +78,8 @@ fn fields(r: &ClassRow) -> Vec<String> {
         r.pattern.name().to_string(),
         r.galois.map(|g| g.name()).unwrap_or("").to_string(),
         r.stabiliser.to_string(),
+        u8::from(r.els()).to_string(),
+        r.insoluble_at(),
     ]
 }
 
@@ -95,6 +97,14 @@ pub fn row_json(r: &ClassRow) -> Value {
         "factorisation": r.pattern.name(),
         "galois": r.galois.map(|g| g.name()),
         "stabiliser_order": r.stabiliser,
+        "els": r.els(),
+        "insoluble_at": r.local.iter().filter(|l| !l.soluble).map(|l| l.place()).collect::<Vec<_>>(),
+        "local": r.local.iter().map(|l| json!({
+            "place": l.place(),
+            "v_disc": l.v_disc,
+            "pattern": l.pattern,
+            "soluble": l.soluble,
+        })).collect::<Vec<_>>(),
     })
 }
 

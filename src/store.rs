@@ -10,7 +10,7 @@
 //! ```
 //! use qorbits::store::{classes_with_invariants, open_table, table_params, write_table};
 //! use qorbits::table::{enumerate_classes, Params};
-//! let params = Params { height: 1000, include_reducible: false };
+//! let params = Params { height: 3000, include_reducible: true };
 //! let rows = enumerate_classes(&params, None).unwrap().rows;
 //! let dir = std::env::temp_dir().join(format!("qorbits-store-doc-{}", std::process::id()));
 //! std::fs::create_dir_all(&dir).unwrap();
@@ -27,7 +27,7 @@
 use crate::error::{Error, Result};
 use crate::form::Signature;
 use crate::galois::{FactorPattern, GaloisGroup};
-use crate::table::{ClassRow, Params};
+use crate::table::{ClassRow, LocalRow, Params};
 use rusqlite::types::ValueRef;
 use rusqlite::{params, Connection, ErrorCode, OpenFlags, OptionalExtension};
 use sha2::{Digest, Sha256};
@@ -36,16 +36,16 @@ use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 
 /// Version of the schema written by this builder (also the file's `PRAGMA user_version`).
-pub const SCHEMA_VERSION: u32 = 1;
+pub const SCHEMA_VERSION: u32 = 2;
 
 /// `PRAGMA application_id` of every qorbits table: the ASCII bytes `QORB`.
 pub const APPLICATION_ID: i32 = 0x514F_5242;
 
-/// The `CREATE TABLE` statements of schema version 1.
-pub const SCHEMA_SQL: &str = include_str!("../schema/v1.sql");
+/// The `CREATE TABLE` statements of the current schema version.
+pub const SCHEMA_SQL: &str = include_str!("../schema/v2.sql");
 
-/// The `CREATE INDEX` statements of schema version 1, run after the data is inserted.
-pub const INDEX_SQL: &str = include_str!("../schema/v1-indexes.sql");
+/// The `CREATE INDEX` statements of the current schema, run after the data is inserted.
+pub const INDEX_SQL: &str = include_str!("../schema/v2-indexes.sql");
 
 /// Page size of every table file, fixed so that the bytes do not depend on SQLite defaults.
 pub const PAGE_SIZE: u32 = 4096;
@@ -61,7 +61,8 @@ pub const LABEL_RULE: &str = "I.J.iN is the N-th irreducible and I.J.rN the N-th
 /// joined by `|`, NULL as the empty string, every row ended by `\n`, no header), is hashed
 /// by [`content_sha256`].
 pub const CONTENT_SQL: &str = "SELECT * FROM meta ORDER BY key; \
-     SELECT * FROM classes ORDER BY id; SELECT * FROM pairs ORDER BY h4, I, J;";
+     SELECT * FROM classes ORDER BY id; SELECT * FROM local ORDER BY class_id, p = 0, p; \
+     SELECT * FROM pairs ORDER BY h4, I, J; SELECT * FROM pair_primes ORDER BY I, J, p;";
 
 // ---------------------------------------------------------------------------------------
 // Atomic files (shared with the manifest writer).
@@ -206,6 +207,8 @@ struct PairRow {
     classes: i64,
     irreducible: i64,
     reducible: Option<i64>,
+    els: i64,
+    primes: Vec<(i64, i64)>,
 }
 
 /// The rows must be what [`crate::table::enumerate_classes`] returns for `params`.
@@ -254,6 +257,7 @@ fn pair_rows(rows: &[ClassRow], include_reducible: bool) -> Vec<PairRow> {
             Some(p) if (p.i, p.j) == (r.i, r.j) => {
                 p.classes += 1;
                 p.irreducible += irr;
+                p.els += i64::from(r.els());
             }
             _ => out.push(PairRow {
                 i: r.i,
@@ -264,6 +268,11 @@ fn pair_rows(rows: &[ClassRow], include_reducible: bool) -> Vec<PairRow> {
                 classes: 1,
                 irreducible: irr,
                 reducible: None,
+                els: i64::from(r.els()),
+                primes: crate::primes::factor(&rug::Integer::from(r.disc))
+                    .into_iter()
+                    .map(|(p, e)| (p.to_i64().expect("factor of an i64"), i64::from(e)))
+                    .collect(),
             }),
         }
     }
@@ -314,8 +323,9 @@ fn fill(tmp: &Path, params: &Params, rows: &[ClassRow], pairs: &[PairRow]) -> ru
             meta.execute(params![k, v])?;
         }
         let mut ins = tx.prepare(
-            "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17)",
+            "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19)",
         )?;
+        let mut loc = tx.prepare("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?;
         for (n, r) in rows.iter().enumerate() {
             let [a, b, c, d, e] = r.form;
             ins.execute(params![
@@ -336,9 +346,16 @@ fn fill(tmp: &Path, params: &Params, rows: &[ClassRow], pairs: &[PairRow]) -> ru
                 r.pattern == FactorPattern::Irreducible,
                 r.galois.map(GaloisGroup::name),
                 r.stabiliser,
+                r.els(),
+                r.insoluble_at(),
             ])?;
+            for l in &r.local {
+                loc.execute(params![n as i64 + 1, l.p, l.v_disc, l.pattern, l.soluble])?;
+            }
         }
-        let mut ins = tx.prepare("INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)")?;
+        let mut ins =
+            tx.prepare("INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9)")?;
+        let mut pp = tx.prepare("INSERT INTO pair_primes VALUES (?1, ?2, ?3, ?4)")?;
         for p in pairs {
             ins.execute(params![
                 p.i,
@@ -348,8 +365,12 @@ fn fill(tmp: &Path, params: &Params, rows: &[ClassRow], pairs: &[PairRow]) -> ru
                 p.h4,
                 p.classes,
                 p.irreducible,
-                p.reducible
+                p.reducible,
+                p.els
             ])?;
+            for (q, e) in &p.primes {
+                pp.execute(params![p.i, p.j, q, e])?;
+            }
         }
     }
     tx.execute_batch(INDEX_SQL)?;
@@ -552,6 +573,16 @@ impl StoredClass {
         let stabiliser =
             u8::try_from(self.stabiliser).map_err(|_| bad("an invalid stabiliser order"))?;
         let [a, b, c, d, e, i, j, disc, h4] = self.ints;
+        let local = (|| {
+            let mut st = conn.prepare_cached(
+                "SELECT p, v_disc, pattern, soluble FROM local WHERE class_id = ?1 ORDER BY p = 0, p",
+            )?;
+            let rows = st.query_map([self.id], |r| {
+                Ok(LocalRow { p: r.get(0)?, v_disc: r.get(1)?, pattern: r.get(2)?, soluble: r.get(3)? })
+            })?;
+            rows.collect::<rusqlite::Result<Vec<_>>>()
+        })()
+        .map_err(|e| read_error(conn, e))?;
         Ok(ClassRow {
             form: [a, b, c, d, e],
             i,
@@ -563,6 +594,7 @@ impl StoredClass {
             galois,
             stabiliser,
             label: self.label,
+            local,
         })
     }
 }

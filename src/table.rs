@@ -17,6 +17,8 @@ use crate::enumerate::{translates_into_strip, HeightBound, Task};
 use crate::error::{Error, Result};
 use crate::form::{Form, Signature};
 use crate::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
+use crate::local::local_data;
+use crate::primes::factor;
 use indicatif::ProgressBar;
 use rayon::prelude::*;
 
@@ -52,9 +54,51 @@ pub struct ClassRow {
     pub stabiliser: u8,
     /// Stable label (module doc).
     pub label: String,
+    /// Local data: every prime dividing 2·Disc in increasing order, then infinity.
+    pub local: Vec<LocalRow>,
+}
+
+/// The local data of a class at one place (DESIGN §4).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct LocalRow {
+    /// The prime, or 0 for the real place.
+    pub p: i64,
+    /// `v_p(Disc)`; `None` at infinity.
+    pub v_disc: Option<i64>,
+    /// Factorisation pattern of f mod p (e.g. `1 1^3`, `0` if f vanishes mod p); the
+    /// signature name at infinity.
+    pub pattern: String,
+    /// Whether z² = f(x, y) has a point over Q_p (over R at infinity).
+    pub soluble: bool,
+}
+
+impl LocalRow {
+    /// `2`, `3`, … or `inf`.
+    pub fn place(&self) -> String {
+        if self.p == 0 {
+            "inf".into()
+        } else {
+            self.p.to_string()
+        }
+    }
 }
 
 impl ClassRow {
+    /// Everywhere locally soluble.
+    pub fn els(&self) -> bool {
+        self.local.iter().all(|l| l.soluble)
+    }
+
+    /// The places without a point, comma-separated (`""` when ELS), e.g. `2,inf`.
+    pub fn insoluble_at(&self) -> String {
+        self.local
+            .iter()
+            .filter(|l| !l.soluble)
+            .map(LocalRow::place)
+            .collect::<Vec<_>>()
+            .join(",")
+    }
+
     /// The sort key of the table.
     pub fn key(&self) -> (i64, i64, i64, [i64; 5]) {
         (self.h4, self.i, self.j, self.form)
@@ -70,7 +114,27 @@ pub struct Enumeration {
     pub candidates: u64,
 }
 
-fn annotate(f: &Form<i128>, include_reducible: bool) -> Result<Option<ClassRow>> {
+/// The local rows of a form from the factorisation of its discriminant.
+pub fn local_rows(
+    f: &Form<rug::Integer>,
+    factors: &[(rug::Integer, u32)],
+    s: Signature,
+) -> Vec<LocalRow> {
+    local_data(f, factors, s)
+        .places
+        .into_iter()
+        .map(|p| LocalRow {
+            p: p.prime
+                .map(|q| q.to_i64().expect("table primes fit i64"))
+                .unwrap_or(0),
+            v_disc: p.v_disc.map(i64::from),
+            pattern: p.pattern,
+            soluble: p.soluble,
+        })
+        .collect()
+}
+
+fn annotate(f: &Form<i128>, include_reducible: bool, with_local: bool) -> Result<Option<ClassRow>> {
     let inv = f.invariants().ok_or(Error::Overflow)?;
     let pattern = factor_pattern(f)
         .or_else(|| factor_pattern(&f.to_big()))
@@ -84,6 +148,13 @@ fn annotate(f: &Form<i128>, include_reducible: bool) -> Result<Option<ClassRow>>
     let signature = f.signature(&inv).ok_or(Error::Overflow)?;
     let stabiliser = stabiliser_of_member(f)?.len() as u8;
     let small = |v: i128| i64::try_from(v).map_err(|_| Error::Overflow);
+    let local = if with_local {
+        let big = f.to_big();
+        let factors = factor(&big.invariants().expect("big integers").disc);
+        local_rows(&big, &factors, signature)
+    } else {
+        Vec::new()
+    };
     Ok(Some(ClassRow {
         form: f.c.map(|v| v as i64),
         i: small(inv.i)?,
@@ -95,6 +166,7 @@ fn annotate(f: &Form<i128>, include_reducible: bool) -> Result<Option<ClassRow>>
         galois,
         stabiliser,
         label: String::new(),
+        local,
     }))
 }
 
@@ -102,6 +174,7 @@ fn run_task(
     task: &Task,
     hb: &HeightBound,
     include_reducible: bool,
+    with_local: bool,
 ) -> Result<(Vec<ClassRow>, u64)> {
     let mut rows = Vec::new();
     let mut failure = None;
@@ -117,7 +190,7 @@ fn run_task(
         let found = translates_into_strip(&f).and_then(|ts| {
             for (t, hint) in ts {
                 if is_canonical_with(&t, hint)? {
-                    return annotate(&t, include_reducible);
+                    return annotate(&t, include_reducible, with_local);
                 }
             }
             Ok(None)
@@ -161,6 +234,16 @@ pub fn order_and_label(rows: &mut [ClassRow]) {
 /// Every class with `H < height` (irreducible, or all with `include_reducible`), in table
 /// order. Runs on the current rayon pool; `progress` advances once per task.
 pub fn enumerate_classes(params: &Params, progress: Option<&ProgressBar>) -> Result<Enumeration> {
+    enumerate_classes_with(params, progress, true)
+}
+
+/// [`enumerate_classes`] with the local data left out when `with_local` is false (rows
+/// with an empty `local`; for benchmarks — such rows do not make a valid table).
+pub fn enumerate_classes_with(
+    params: &Params,
+    progress: Option<&ProgressBar>,
+    with_local: bool,
+) -> Result<Enumeration> {
     let hb = HeightBound::new(params.height)?;
     let tasks = Task::all(&hb, params.include_reducible);
     if let Some(p) = progress {
@@ -169,7 +252,7 @@ pub fn enumerate_classes(params: &Params, progress: Option<&ProgressBar>) -> Res
     let parts: Vec<Result<(Vec<ClassRow>, u64)>> = tasks
         .par_iter()
         .map(|t| {
-            let r = run_task(t, &hb, params.include_reducible);
+            let r = run_task(t, &hb, params.include_reducible, with_local);
             if let Some(p) = progress {
                 p.inc(1);
             }
