@@ -73,15 +73,15 @@ pub const C: [f64; 5] = [
 ];
 
 /// Relative slack added to every real bound before rounding it to an integer range.
-const SLACK: f64 = 1e-9;
+pub(crate) const SLACK: f64 = 1e-9;
 
-fn y_min() -> f64 {
+pub(crate) fn y_min() -> f64 {
     let (r, x) = (1.0 - ETA, 0.5 + ETA);
     (r * r - x * x).sqrt() * (1.0 - 1e-12)
 }
 
 /// The range of `p(x) = p[0] + p[1]x + p[2]x² + p[3]x³` over `x ∈ [lo, hi]`.
-fn poly_range(p: [f64; 4], lo: f64, hi: f64) -> (f64, f64) {
+pub(crate) fn poly_range(p: [f64; 4], lo: f64, hi: f64) -> (f64, f64) {
     let eval = |x: f64| p[0] + x * (p[1] + x * (p[2] + x * p[3]));
     let mut pts = vec![lo, hi];
     // Critical points: p'(x) = p1 + 2p2 x + 3p3 x².
@@ -107,7 +107,7 @@ fn poly_range(p: [f64; 4], lo: f64, hi: f64) -> (f64, f64) {
 }
 
 /// Integers in `[lo, hi]`, widened by the slack.
-fn int_range(lo: f64, hi: f64) -> (i64, i64) {
+pub(crate) fn int_range(lo: f64, hi: f64) -> (i64, i64) {
     let w = SLACK * (1.0 + lo.abs().max(hi.abs()));
     ((lo - w).ceil() as i64, (hi + w).floor() as i64)
 }
@@ -128,7 +128,7 @@ fn ceil_div(n: i128, d: i128) -> i128 {
 }
 
 /// Integers e with `lo ≤ k·e + m ≤ hi` (k ≠ 0), as an inclusive range.
-fn linear_range(k: i128, m: i128, lo: i128, hi: i128) -> (i128, i128) {
+pub(crate) fn linear_range(k: i128, m: i128, lo: i128, hi: i128) -> (i128, i128) {
     if k > 0 {
         (ceil_div(lo - m, k), floor_div(hi - m, k))
     } else {

@@ -13,6 +13,7 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod by_invariants;
 pub mod canonical;
 pub mod class;
 pub mod covariant;

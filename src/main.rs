@@ -86,9 +86,16 @@ enum Command {
         /// Invariant J (negative values as plain arguments).
         #[arg(long = "J", allow_negative_numbers = true)]
         j: String,
-        /// The table to query (default: qorbits-h1e6.sqlite).
+        /// A table to answer from; without one (or when its height bound is below H(I, J))
+        /// the classes are computed directly from the invariants.
         #[arg(long)]
         db: Option<PathBuf>,
+        /// Also the classes with a rational factor (Disc ≠ 0).
+        #[arg(long)]
+        include_reducible: bool,
+        /// Print only the number of classes.
+        #[arg(long)]
+        count: bool,
         /// JSON output (one array of objects).
         #[arg(long, conflicts_with = "csv")]
         json: bool,
@@ -307,43 +314,51 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
             json,
             csv,
             els,
+            count,
+            include_reducible,
         } => {
             let (i, j) = (parse_int("I", &i)?, parse_int("J", &j)?);
-            if !qorbits::form::eligible(&i, &j) {
-                return Err(Error::Input(format!(
-                    "no integral form has invariants (I, J) = ({i}, {j}): (I, J) must satisfy I ≡ 0 (mod 3) and J ≡ 0 (mod 27), or I ≡ 1, 4, 7 (mod 9) and J ≡ ±2, ±16, ±7 (mod 27) respectively"
-                )));
+            if let Some(why) = qorbits::by_invariants::refusal(&i, &j) {
+                return Err(Error::Input(why));
             }
-            let db = db.unwrap_or_else(|| PathBuf::from("qorbits-h1e6.sqlite"));
-            let conn = open_table(&db)?;
-            let params = table_params(&conn)?;
-            let (i64v, j64v) = match (i.to_i64(), j.to_i64()) {
-                (Some(a), Some(b)) => (a, b),
-                _ => {
-                    return Err(Error::Input(format!(
-                        "(I, J) = ({i}, {j}) is far above the table's height bound"
-                    )))
+            let h4 = qorbits::form::invariants_from_ij(i.clone(), j.clone())
+                .expect("eligible pair")
+                .h4;
+            // Answer from the table when it covers (I, J) (and the classes asked for);
+            // otherwise compute them directly from the invariants.
+            let mut from_table = None;
+            if let Some(db) = &db {
+                let conn = open_table(db)?;
+                let params = table_params(&conn)?;
+                let covers =
+                    h4 < 4 * params.height && (params.include_reducible || !include_reducible);
+                if covers {
+                    let (a, b) = (
+                        i.to_i64().expect("below the bound"),
+                        j.to_i64().expect("below the bound"),
+                    );
+                    from_table = Some(classes_with_invariants(&conn, a, b)?);
+                } else {
+                    eprintln!(
+                        "qorbits: {} does not cover (I, J) = ({i}, {j}) (H = {}); computing from the invariants",
+                        db.display(),
+                        height_decimal(&h4)
+                    );
                 }
+            }
+            let mut rows = match from_table {
+                Some(rows) => rows,
+                None => qorbits::by_invariants::classes_with_invariants(&i, &j, include_reducible)?,
             };
-            let inv =
-                qorbits::form::invariants_from_ij(i.clone(), j.clone()).expect("eligible pair");
-            if inv.disc == 0 {
-                return Err(Error::Input(format!(
-                    "(I, J) = ({i}, {j}) has 4I³ = J², so Disc = 0: such forms have a repeated root and are outside the table"
-                )));
+            if !include_reducible {
+                rows.retain(|r| r.galois.is_some());
             }
-            let h4 = inv.h4;
-            if h4 >= 4 * params.height {
-                return Err(Error::Input(format!(
-                    "(I, J) = ({i}, {j}) has H = {}, not below the table's bound {} ({})",
-                    height_decimal(&h4),
-                    params.height,
-                    db.display()
-                )));
-            }
-            let mut rows = classes_with_invariants(&conn, i64v, j64v)?;
             if els {
                 rows.retain(|r| r.els());
+            }
+            if count {
+                println!("{}", rows.len());
+                return Ok(ExitCode::SUCCESS);
             }
             print!(
                 "{}",

@@ -42,7 +42,7 @@ pub fn default_file_name(p: &Params) -> String {
     format!("qorbits-h{h}{suffix}.sqlite")
 }
 
-const COLUMNS: [&str; 15] = [
+const COLUMNS: [&str; 17] = [
     "label",
     "a",
     "b",
@@ -58,6 +58,8 @@ const COLUMNS: [&str; 15] = [
     "factorisation",
     "galois",
     "stabiliser",
+    "els",
+    "insoluble_at",
 ];
 
 fn fields(r: &ClassRow) -> Vec<String> {

@@ -134,7 +134,11 @@ pub fn local_rows(
         .collect()
 }
 
-fn annotate(f: &Form<i128>, include_reducible: bool, with_local: bool) -> Result<Option<ClassRow>> {
+pub(crate) fn annotate(
+    f: &Form<i128>,
+    include_reducible: bool,
+    with_local: bool,
+) -> Result<Option<ClassRow>> {
     let inv = f.invariants().ok_or(Error::Overflow)?;
     let pattern = factor_pattern(f)
         .or_else(|| factor_pattern(&f.to_big()))

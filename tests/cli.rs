@@ -131,3 +131,30 @@ fn build_into_a_missing_directory_fails_cleanly() {
     let (_, err) = text(&o);
     assert_eq!(err.trim().lines().count(), 1, "{err}");
 }
+
+#[test]
+fn classes_without_a_table_are_computed_and_bad_pairs_refused() {
+    let o = qorbits(&["classes", "--I", "145", "--J", "-8048", "--count"]);
+    assert!(o.status.success(), "{:?}", text(&o));
+    assert_eq!(text(&o).0.trim(), "3");
+    for (i, j) in [("1", "0"), ("9", "54"), ("x", "0")] {
+        let o = qorbits(&["classes", "--I", i, "--J", j]);
+        assert_eq!(o.status.code(), Some(2), "({i}, {j})");
+        assert_eq!(text(&o).1.trim().lines().count(), 1);
+    }
+    let o = qorbits(&[
+        "classes",
+        "--I",
+        "-48",
+        "--J",
+        "1404",
+        "--include-reducible",
+        "--json",
+    ]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert!(v
+        .as_array()
+        .unwrap()
+        .iter()
+        .all(|r| r["I"] == -48 && r["local"].is_array()));
+}
