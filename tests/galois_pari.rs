@@ -10,6 +10,9 @@
 //! The sample mixes random forms of three sizes with forms built to be reducible in each
 //! way and to have the small groups, all with non-zero discriminant.
 
+mod common;
+
+use common::Rng;
 use qorbits::form::{Form, Gl2};
 use qorbits::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
 use rug::ops::Pow;
@@ -17,48 +20,6 @@ use rug::Integer;
 use std::collections::BTreeMap;
 use std::io::ErrorKind;
 use std::process::{Command, Stdio};
-
-/// splitmix64: a small deterministic generator (common practice, no source needed).
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform in `-m..=m`.
-    fn range(&mut self, m: i64) -> i64 {
-        (self.next() % (2 * m as u64 + 1)) as i64 - m
-    }
-
-    /// Uniform in `-m..=m` without zero.
-    fn nonzero(&mut self, m: i64) -> i64 {
-        loop {
-            let v = self.range(m);
-            if v != 0 {
-                return v;
-            }
-        }
-    }
-
-    /// A value with `1..=max_digits` decimal digits (uniform number of digits), either sign.
-    fn big(&mut self, max_digits: u32) -> Integer {
-        let digits = 1 + (self.next() % u64::from(max_digits)) as u32;
-        let mut v = Integer::new();
-        for _ in 0..digits {
-            v = v * 10u32 + (self.next() % 10) as u32;
-        }
-        if self.next() % 2 == 0 {
-            -v
-        } else {
-            v
-        }
-    }
-}
 
 fn big_form(c: [Integer; 5]) -> Form<Integer> {
     Form::new(c)
@@ -124,7 +85,7 @@ fn scramble(rng: &mut Rng, f: &Form<Integer>, steps: usize) -> Form<Integer> {
 fn coeffs<const N: usize>(rng: &mut Rng, large: bool) -> [Integer; N] {
     std::array::from_fn(|_| {
         if large {
-            rng.big(12)
+            rng.big_upto(12)
         } else {
             Integer::from(rng.range(6))
         }
@@ -172,7 +133,7 @@ fn sample() -> Vec<(&'static str, Form<Integer>)> {
         Some(small_form(std::array::from_fn(|_| r.range(1000))))
     });
     s.fill("large", 250, |r| {
-        Some(big_form(std::array::from_fn(|_| r.big(30))))
+        Some(big_form(std::array::from_fn(|_| r.big_upto(30))))
     });
 
     // Reducible by construction: two quadratics, linear times cubic, a = 0 and/or e = 0.
@@ -239,7 +200,7 @@ fn sample() -> Vec<(&'static str, Form<Integer>)> {
     // Large structured forms: biquadratics with big coefficients and big members of the C4
     // family above.
     s.fill("large-biquadratic", 100, |r| {
-        let (a, c, e) = (r.big(15), r.big(15), r.big(15));
+        let (a, c, e) = (r.big_upto(15), r.big_upto(15), r.big_upto(15));
         let f = big_form([a, Integer::new(), c, Integer::new(), e]);
         let steps = (r.next() % 3) as usize;
         Some(scramble(r, &f, steps))
@@ -247,7 +208,7 @@ fn sample() -> Vec<(&'static str, Form<Integer>)> {
     s.fill("large-C4-family", 60, |r| {
         let k = r.nonzero(1_000);
         let n = k * k + 4;
-        let m = r.big(12);
+        let m = r.big_upto(12);
         let f = big_form([
             Integer::from(1),
             Integer::new(),

@@ -22,6 +22,16 @@ impl Rng {
         (self.next() % (2 * m as u64 + 1)) as i64 - m
     }
 
+    /// Uniform in `-m..=m` without zero.
+    pub fn nonzero(&mut self, m: i64) -> i64 {
+        loop {
+            let v = self.range(m);
+            if v != 0 {
+                return v;
+            }
+        }
+    }
+
     /// A value with a random number of digits in `1..=max_digits`.
     pub fn big_upto(&mut self, max_digits: u32) -> Integer {
         let d = 1 + (self.next() % max_digits as u64) as u32;
