@@ -182,6 +182,6 @@ pub fn classes_with_invariants(
     for p in parts {
         rows.extend(p?);
     }
-    order_and_label(&mut rows);
+    order_and_label(&mut rows)?;
     Ok(rows)
 }

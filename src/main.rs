@@ -9,6 +9,7 @@ use qorbits::manifest::{
     default_manifest_path, manifest_for, read_manifest, verify, write_manifest,
 };
 use qorbits::report;
+use qorbits::selmer::{selmer_stats, two_selmer, Curve};
 use qorbits::store::{
     classes_with_invariants, content_sha256, open_table, table_params, write_table,
 };
@@ -116,6 +117,38 @@ enum Command {
         /// The table (SQLite file).
         file: PathBuf,
     },
+    /// The 2-Selmer group of an elliptic curve without rational 2-torsion, from the
+    /// quartic forms with invariants (c4, 2·c6): its rank and one quartic per element.
+    Selmer {
+        /// Weierstrass coefficients a1 a2 a3 a4 a6 (negative values as plain arguments).
+        #[arg(long, num_args = 5, allow_negative_numbers = true, value_names = ["A1", "A2", "A3", "A4", "A6"], conflicts_with = "short", required_unless_present = "short")]
+        ainvs: Option<Vec<String>>,
+        /// The curve y^2 = x^3 + A x + B.
+        #[arg(long, num_args = 2, allow_negative_numbers = true, value_names = ["A", "B"])]
+        short: Option<Vec<String>>,
+        /// Print one JSON object instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Average size of the 2-Selmer group over the curves y^2 = x^3 + A x + B of height
+    /// max(4|A|^3, 27B^2) below Y without rational 2-torsion.
+    SelmerStats {
+        /// The height bound Y (e.g. 1e4).
+        #[arg(long)]
+        height: String,
+        /// Worker threads (default: all cores). The output does not depend on it.
+        #[arg(long)]
+        jobs: Option<usize>,
+        /// Print one JSON object instead of text.
+        #[arg(long)]
+        json: bool,
+        /// Also list every curve with its 2-Selmer rank (text: after the table).
+        #[arg(long)]
+        curves: bool,
+        /// No progress bar.
+        #[arg(long)]
+        quiet: bool,
+    },
 }
 
 fn parse_int(name: &str, s: &str) -> Result<Integer, Error> {
@@ -180,7 +213,7 @@ fn progress_bar(quiet: bool, what: &str) -> ProgressBar {
     }
     let p = ProgressBar::with_draw_target(Some(0), ProgressDrawTarget::stderr());
     p.set_style(
-        ProgressStyle::with_template("{msg} [{bar:40}] {pos}/{len} tasks, {elapsed} (eta {eta})")
+        ProgressStyle::with_template("{msg} [{bar:40}] {pos}/{len}, {elapsed} (eta {eta})")
             .expect("valid template")
             .progress_chars("=> "),
     );
@@ -383,6 +416,34 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
         Command::Stats { file } => {
             let conn = open_table(&file)?;
             print!("{}", report::stats(&conn)?);
+        }
+        Command::Selmer { ainvs, short, json } => {
+            let curve = match (ainvs, short) {
+                (Some(a), _) => {
+                    let mut c = Vec::with_capacity(5);
+                    for (name, v) in ["a1", "a2", "a3", "a4", "a6"].iter().zip(&a) {
+                        c.push(parse_int(name, v)?);
+                    }
+                    Curve::new(c.try_into().expect("five coefficients"))?
+                }
+                (None, Some(s)) => Curve::short(parse_int("A", &s[0])?, parse_int("B", &s[1])?)?,
+                (None, None) => unreachable!("clap requires --ainvs or --short"),
+            };
+            let s = two_selmer(&curve)?;
+            print!("{}", report::selmer(&curve, &s, json));
+        }
+        Command::SelmerStats {
+            height,
+            jobs,
+            json,
+            curves,
+            quiet,
+        } => {
+            let y = parse_height(&height)?;
+            let bar = progress_bar(quiet, "curves");
+            let stats = pool(jobs)?.install(|| selmer_stats(y, Some(&bar)))?;
+            bar.finish_and_clear();
+            print!("{}", report::selmer_stats(&stats, json, curves));
         }
     }
     Ok(ExitCode::SUCCESS)

@@ -62,6 +62,9 @@ pub struct Counts {
     pub by_galois: BTreeMap<String, u64>,
     /// Everywhere locally soluble classes.
     pub els: u64,
+    /// Classes over Q of the everywhere locally soluble irreducible classes, summed over
+    /// the pairs.
+    pub rational_els: u64,
 }
 
 /// The file itself.
@@ -142,6 +145,7 @@ fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
         by_signature,
         by_galois,
         els: one("SELECT count(*) FROM classes WHERE els = 1")?,
+        rational_els: one("SELECT count(*) FROM classes WHERE rational_class = label")?,
     })
 }
 
@@ -261,6 +265,11 @@ pub fn verify(db: &Path, m: &Manifest) -> Vec<Check> {
             out.push(check("classes", m.counts.classes, got.counts.classes));
             out.push(check("pairs", m.counts.pairs, got.counts.pairs));
             out.push(check("els classes", m.counts.els, got.counts.els));
+            out.push(check(
+                "els classes over Q",
+                m.counts.rational_els,
+                got.counts.rational_els,
+            ));
             for (k, v) in &m.counts.by_signature {
                 out.push(check(
                     &format!("signature {k}"),

@@ -1,5 +1,6 @@
 //! Renderings of table data for people and programs: rows as text, JSON or CSV, the
-//! citation of a table, and counts against the asymptotic main terms.
+//! citation of a table, counts against the asymptotic main terms, and 2-Selmer groups and
+//! their averages.
 //!
 //! ```
 //! use qorbits::report::main_term;
@@ -8,6 +9,7 @@
 //! ```
 
 use crate::error::Result;
+use crate::selmer::{Curve, Selmer, SelmerBin, SelmerStats};
 use crate::table::{ClassRow, Params};
 use rusqlite::Connection;
 use serde_json::{json, Value};
@@ -42,7 +44,7 @@ pub fn default_file_name(p: &Params) -> String {
     format!("qorbits-h{h}{suffix}.sqlite")
 }
 
-const COLUMNS: [&str; 17] = [
+const COLUMNS: [&str; 18] = [
     "label",
     "a",
     "b",
@@ -60,6 +62,7 @@ const COLUMNS: [&str; 17] = [
     "stabiliser",
     "els",
     "insoluble_at",
+    "rational_class",
 ];
 
 fn fields(r: &ClassRow) -> Vec<String> {
@@ -82,6 +85,7 @@ fn fields(r: &ClassRow) -> Vec<String> {
         r.stabiliser.to_string(),
         u8::from(r.els()).to_string(),
         r.insoluble_at(),
+        r.rational.clone().unwrap_or_default(),
     ]
 }
 
@@ -101,6 +105,7 @@ pub fn row_json(r: &ClassRow) -> Value {
         "stabiliser_order": r.stabiliser,
         "els": r.els(),
         "insoluble_at": r.local.iter().filter(|l| !l.soluble).map(|l| l.place()).collect::<Vec<_>>(),
+        "rational_class": r.rational,
         "local": r.local.iter().map(|l| json!({
             "place": l.place(),
             "v_disc": l.v_disc,
@@ -248,4 +253,143 @@ pub fn stats(conn: &Connection) -> Result<String> {
     )
     .expect("string");
     Ok(out)
+}
+
+fn form_text(f: &[i64; 5]) -> String {
+    format!("({}, {}, {}, {}, {})", f[0], f[1], f[2], f[3], f[4])
+}
+
+/// The 2-Selmer group of a curve, as text or one JSON object.
+pub fn selmer(curve: &Curve, s: &Selmer, json: bool) -> String {
+    if json {
+        let v = json!({
+            "curve": curve.ainvs.iter().map(|a| a.to_string()).collect::<Vec<_>>(),
+            "c4": curve.c4().to_string(),
+            "c6": curve.c6().to_string(),
+            "discriminant": curve.discriminant().to_string(),
+            "I": s.i.to_string(),
+            "J": s.j.to_string(),
+            "selmer_rank": s.rank,
+            "selmer_order": 1u64 << s.rank,
+            "irreducible_classes": s.irreducible_classes,
+            "els_classes": s.els_classes,
+            "elements": s.elements.iter().map(|r| json!({
+                "label": r.label,
+                "quartic": r.form,
+            })).collect::<Vec<_>>(),
+        });
+        return format!("{v}\n");
+    }
+    let mut out = String::new();
+    let w = &mut out;
+    writeln!(w, "curve          {}", curve.name()).expect("string");
+    writeln!(w, "c4, c6         {}, {}", curve.c4(), curve.c6()).expect("string");
+    writeln!(w, "discriminant   {}", curve.discriminant()).expect("string");
+    writeln!(w, "quartics       I = {}, J = {}", s.i, s.j).expect("string");
+    writeln!(
+        w,
+        "classes        {} irreducible, {} everywhere locally soluble, {} over Q",
+        s.irreducible_classes,
+        s.els_classes,
+        s.elements.len()
+    )
+    .expect("string");
+    writeln!(w, "2-Selmer rank  {} (order {})", s.rank, 1u64 << s.rank).expect("string");
+    if !s.elements.is_empty() {
+        writeln!(
+            w,
+            "non-trivial elements, one canonical quartic (a, b, c, d, e) each:"
+        )
+        .expect("string");
+    }
+    for r in &s.elements {
+        writeln!(w, "  {}  {}", form_text(&r.form), r.label).expect("string");
+    }
+    out
+}
+
+fn bin_json(b: &SelmerBin) -> Value {
+    json!({
+        "from": b.lo.to_string(),
+        "below": b.hi.to_string(),
+        "curves": b.curves,
+        "selmer_total": b.total,
+        "average": b.average(),
+        "curves_by_rank": b.by_rank,
+    })
+}
+
+/// The statement of the family of [`crate::selmer::short_family`] for a height bound.
+pub fn selmer_family(y: i128) -> String {
+    format!(
+        "all integer pairs (A, B) with max(4|A|^3, 27B^2) < {y}, 4A^3 + 27B^2 != 0, no prime p \
+         with p^4 | A and p^6 | B, and x^3 + Ax + B without a rational root; each pair is one \
+         curve y^2 = x^3 + Ax + B"
+    )
+}
+
+/// Averages of the 2-Selmer group over the family, by height bin, as text or JSON.
+pub fn selmer_stats(st: &SelmerStats, json: bool, curves: bool) -> String {
+    if json {
+        let mut v = json!({
+            "height": st.height.to_string(),
+            "family": selmer_family(st.height),
+            "curves": st.all.curves,
+            "average": st.all.average(),
+            "curves_by_rank": st.all.by_rank,
+            "bins": st.bins.iter().map(bin_json).collect::<Vec<_>>(),
+        });
+        if curves {
+            v["ranks"] = Value::Array(
+                st.curves
+                    .iter()
+                    .map(|(a, b, r)| json!({"A": a, "B": b, "selmer_rank": r}))
+                    .collect(),
+            );
+        }
+        return format!("{v}\n");
+    }
+    let mut out = String::new();
+    let w = &mut out;
+    writeln!(w, "family: {}", selmer_family(st.height)).expect("string");
+    writeln!(
+        w,
+        "{} curves, average size of the 2-Selmer group {:.4}",
+        st.all.curves,
+        st.all.average()
+    )
+    .expect("string");
+    let ranks = st.all.by_rank.len().max(1);
+    let mut header = format!(
+        "{:>12} {:>12} {:>8} {:>9} {:>10}",
+        "H from", "H below", "curves", "average", "cumulative"
+    );
+    for r in 0..ranks {
+        write!(header, " {:>7}", format!("rank {r}")).expect("string");
+    }
+    writeln!(w, "{header}").expect("string");
+    let (mut n, mut t) = (0u64, 0u64);
+    for b in &st.bins {
+        n += b.curves;
+        t += b.total;
+        let mut line = format!(
+            "{:>12} {:>12} {:>8} {:>9.4} {:>10.4}",
+            b.lo,
+            b.hi,
+            b.curves,
+            b.average(),
+            t as f64 / n.max(1) as f64
+        );
+        for r in 0..ranks {
+            write!(line, " {:>7}", b.by_rank.get(r).copied().unwrap_or(0)).expect("string");
+        }
+        writeln!(w, "{line}").expect("string");
+    }
+    if curves {
+        writeln!(w, "A B selmer_rank").expect("string");
+        for (a, b, r) in &st.curves {
+            writeln!(w, "{a} {b} {r}").expect("string");
+        }
+    }
+    out
 }

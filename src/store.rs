@@ -1,6 +1,6 @@
 //! SQLite schema and writer, and the queries on a finished table (DESIGN §4, §5).
 //!
-//! This module owns the schema (`schema/v1.sql` for the tables, `schema/v1-indexes.sql` for
+//! This module owns the schema (`schema/v3.sql` for the tables, `schema/v3-indexes.sql` for
 //! the indexes built after the data), the byte-reproducible and atomic writer
 //! [`write_table`], read-only opening with clear errors [`open_table`], the queries
 //! [`table_params`] and [`classes_with_invariants`], and the two hashes of a table: the
@@ -36,16 +36,16 @@ use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 
 /// Version of the schema written by this builder (also the file's `PRAGMA user_version`).
-pub const SCHEMA_VERSION: u32 = 2;
+pub const SCHEMA_VERSION: u32 = 3;
 
 /// `PRAGMA application_id` of every qorbits table: the ASCII bytes `QORB`.
 pub const APPLICATION_ID: i32 = 0x514F_5242;
 
 /// The `CREATE TABLE` statements of the current schema version.
-pub const SCHEMA_SQL: &str = include_str!("../schema/v2.sql");
+pub const SCHEMA_SQL: &str = include_str!("../schema/v3.sql");
 
 /// The `CREATE INDEX` statements of the current schema, run after the data is inserted.
-pub const INDEX_SQL: &str = include_str!("../schema/v2-indexes.sql");
+pub const INDEX_SQL: &str = include_str!("../schema/v3-indexes.sql");
 
 /// Page size of every table file, fixed so that the bytes do not depend on SQLite defaults.
 pub const PAGE_SIZE: u32 = 4096;
@@ -208,6 +208,7 @@ struct PairRow {
     irreducible: i64,
     reducible: Option<i64>,
     els: i64,
+    rational_els: i64,
     primes: Vec<(i64, i64)>,
 }
 
@@ -239,6 +240,13 @@ fn check_rows(params: &Params, rows: &[ClassRow]) -> Result<()> {
         if irreducible != r.galois.is_some() {
             return Err(bad("has a Galois group exactly when it is reducible"));
         }
+        let grouped = irreducible && !r.local.is_empty() && r.els();
+        if r.rational.is_some() != grouped {
+            return Err(bad(
+                "has a class over Q exactly when it is not an els irreducible class; order and \
+                 label rows with table::order_and_label",
+            ));
+        }
         if !irreducible && !params.include_reducible {
             return Err(bad(
                 "is reducible but the parameters exclude reducible classes",
@@ -258,6 +266,7 @@ fn pair_rows(rows: &[ClassRow], include_reducible: bool) -> Vec<PairRow> {
                 p.classes += 1;
                 p.irreducible += irr;
                 p.els += i64::from(r.els());
+                p.rational_els += i64::from(r.rational.as_ref() == Some(&r.label));
             }
             _ => out.push(PairRow {
                 i: r.i,
@@ -269,6 +278,7 @@ fn pair_rows(rows: &[ClassRow], include_reducible: bool) -> Vec<PairRow> {
                 irreducible: irr,
                 reducible: None,
                 els: i64::from(r.els()),
+                rational_els: i64::from(r.rational.as_ref() == Some(&r.label)),
                 primes: crate::primes::factor(&rug::Integer::from(r.disc))
                     .into_iter()
                     .map(|(p, e)| (p.to_i64().expect("factor of an i64"), i64::from(e)))
@@ -323,7 +333,7 @@ fn fill(tmp: &Path, params: &Params, rows: &[ClassRow], pairs: &[PairRow]) -> ru
             meta.execute(params![k, v])?;
         }
         let mut ins = tx.prepare(
-            "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19)",
+            "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19, ?20)",
         )?;
         let mut loc = tx.prepare("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?;
         for (n, r) in rows.iter().enumerate() {
@@ -348,13 +358,14 @@ fn fill(tmp: &Path, params: &Params, rows: &[ClassRow], pairs: &[PairRow]) -> ru
                 r.stabiliser,
                 r.els(),
                 r.insoluble_at(),
+                r.rational,
             ])?;
             for l in &r.local {
                 loc.execute(params![n as i64 + 1, l.p, l.v_disc, l.pattern, l.soluble])?;
             }
         }
         let mut ins =
-            tx.prepare("INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9)")?;
+            tx.prepare("INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)")?;
         let mut pp = tx.prepare("INSERT INTO pair_primes VALUES (?1, ?2, ?3, ?4)")?;
         for p in pairs {
             ins.execute(params![
@@ -366,7 +377,8 @@ fn fill(tmp: &Path, params: &Params, rows: &[ClassRow], pairs: &[PairRow]) -> ru
                 p.classes,
                 p.irreducible,
                 p.reducible,
-                p.els
+                p.els,
+                p.rational_els
             ])?;
             for (q, e) in &p.primes {
                 pp.execute(params![p.i, p.j, q, e])?;
@@ -544,6 +556,7 @@ struct StoredClass {
     irreducible: i64,
     galois: Option<String>,
     stabiliser: i64,
+    rational: Option<String>,
 }
 
 impl StoredClass {
@@ -594,6 +607,7 @@ impl StoredClass {
             galois,
             stabiliser,
             label: self.label,
+            rational: self.rational,
             local,
         })
     }
@@ -604,7 +618,7 @@ pub fn classes_with_invariants(conn: &Connection, i: i64, j: i64) -> Result<Vec<
     let stored = (|| {
         let mut st = conn.prepare_cached(
             "SELECT id, label, a, b, c, d, e, I, J, disc, h4, real_roots, signature, factorisation, \
-             irreducible, galois, stabiliser FROM classes WHERE I = ?1 AND J = ?2 ORDER BY id",
+             irreducible, galois, stabiliser, rational_class FROM classes WHERE I = ?1 AND J = ?2 ORDER BY id",
         )?;
         let rows = st.query_map([i, j], |r| {
             let mut ints = [0i64; 9];
@@ -621,6 +635,7 @@ pub fn classes_with_invariants(conn: &Connection, i: i64, j: i64) -> Result<Vec<
                 irreducible: r.get(14)?,
                 galois: r.get(15)?,
                 stabiliser: r.get(16)?,
+                rational: r.get(17)?,
             })
         })?;
         rows.collect::<rusqlite::Result<Vec<_>>>()

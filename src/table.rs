@@ -19,8 +19,10 @@ use crate::form::{Form, Signature};
 use crate::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
 use crate::local::local_data;
 use crate::primes::factor;
+use crate::rational::Algebra;
 use indicatif::ProgressBar;
 use rayon::prelude::*;
+use rug::Integer;
 
 /// What a table is built from.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -54,6 +56,10 @@ pub struct ClassRow {
     pub stabiliser: u8,
     /// Stable label (module doc).
     pub label: String,
+    /// For an everywhere locally soluble irreducible class: the label of the first class
+    /// (in table order) of its class over Q among the classes with the same (I, J)
+    /// (module doc of [`crate::rational`]); `None` otherwise.
+    pub rational: Option<String>,
     /// Local data: every prime dividing 2·Disc in increasing order, then infinity.
     pub local: Vec<LocalRow>,
 }
@@ -170,6 +176,7 @@ pub(crate) fn annotate(
         galois,
         stabiliser,
         label: String::new(),
+        rational: None,
         local,
     }))
 }
@@ -211,9 +218,11 @@ fn run_task(
     }
 }
 
-/// Put rows in table order and give them their labels.
-pub fn order_and_label(rows: &mut [ClassRow]) {
+/// Put rows in table order, give them their labels and group the everywhere locally
+/// soluble irreducible classes of each pair into classes over Q (the `rational` column).
+pub fn order_and_label(rows: &mut [ClassRow]) -> Result<()> {
     rows.sort_by_key(ClassRow::key);
+    let mut pairs = Vec::new();
     let mut start = 0;
     while start < rows.len() {
         let mut end = start;
@@ -231,8 +240,61 @@ pub fn order_and_label(rows: &mut [ClassRow]) {
             };
             r.label = format!("{}.{}.{}", r.i, r.j, tag);
         }
+        pairs.push(start..end);
         start = end;
     }
+    let groups: Vec<Result<Vec<(usize, String)>>> = pairs
+        .into_par_iter()
+        .map(|range| {
+            let offset = range.start;
+            rational_classes(&rows[range])
+                .map(|g| g.into_iter().map(|(k, l)| (k + offset, l)).collect())
+        })
+        .collect();
+    for g in groups {
+        for (k, label) in g? {
+            rows[k].rational = Some(label);
+        }
+    }
+    Ok(())
+}
+
+/// The classes over Q of the everywhere locally soluble irreducible rows of one pair, as
+/// (index in `rows`, label of the first row of its class). Rows without local data get
+/// none.
+pub fn rational_classes(rows: &[ClassRow]) -> Result<Vec<(usize, String)>> {
+    let members: Vec<usize> = (0..rows.len())
+        .filter(|&k| {
+            let r = &rows[k];
+            r.pattern == FactorPattern::Irreducible && !r.local.is_empty() && r.els()
+        })
+        .collect();
+    match members.as_slice() {
+        [] => return Ok(Vec::new()),
+        [k] => return Ok(vec![(*k, rows[*k].label.clone())]),
+        _ => {}
+    }
+    let (i, j) = (
+        Integer::from(rows[members[0]].i),
+        Integer::from(rows[members[0]].j),
+    );
+    let algebra = Algebra::new(&i, &j)?;
+    let elements = members
+        .iter()
+        .map(|&k| algebra.element(&Form::<Integer>::from_i64(rows[k].form)))
+        .collect::<Result<Vec<_>>>()?;
+    let classes = algebra.classes(&elements)?;
+    let mut first: Vec<usize> = Vec::new();
+    Ok(members
+        .iter()
+        .zip(classes)
+        .map(|(&k, c)| {
+            if c == first.len() {
+                first.push(k);
+            }
+            (k, rows[first[c]].label.clone())
+        })
+        .collect())
 }
 
 /// Every class with `H < height` (irreducible, or all with `include_reducible`), in table
@@ -270,6 +332,6 @@ pub fn enumerate_classes_with(
         rows.extend(r);
         candidates += n;
     }
-    order_and_label(&mut rows);
+    order_and_label(&mut rows)?;
     Ok(Enumeration { rows, candidates })
 }

@@ -158,3 +158,75 @@ fn classes_without_a_table_are_computed_and_bad_pairs_refused() {
         .iter()
         .all(|r| r["I"] == -48 && r["local"].is_array()));
 }
+
+#[test]
+fn selmer_prints_rank_and_elements() {
+    // y² + y = x³ − x (rank 1, trivial torsion; from memory the first curve of rank 1):
+    // 2-Selmer rank 1, one non-trivial element.
+    let o = qorbits(&["selmer", "--ainvs", "0", "0", "1", "-1", "0"]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    assert!(out.contains("2-Selmer rank  1 (order 2)"), "{out}");
+    assert!(out.contains("I = 48, J = -432"), "{out}");
+    let o = qorbits(&["selmer", "--short", "-7", "10", "--json"]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["selmer_rank"], 2);
+    assert_eq!(v["elements"].as_array().unwrap().len(), 3);
+    for args in [
+        vec!["selmer", "--short", "-1", "0"], // three points of order 2
+        vec!["selmer", "--short", "-3", "2"], // singular
+        vec!["selmer", "--short", "x", "2"],
+        vec!["selmer", "--ainvs", "0", "0", "1"],
+        vec!["selmer"],
+        vec!["selmer-stats", "--height", "-5"],
+    ] {
+        let o = qorbits(&args);
+        let (_, err) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{args:?}");
+        assert!(!err.contains("panicked"), "{args:?}: {err}");
+        if args.len() == 4 {
+            assert_eq!(err.trim().lines().count(), 1, "{args:?}: {err}");
+        }
+    }
+}
+
+#[test]
+fn selmer_stats_states_the_family_and_bins() {
+    let o = qorbits(&["selmer-stats", "--height", "300", "--quiet", "--jobs", "1"]);
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "{err}");
+    assert!(
+        out.contains("family: all integer pairs (A, B) with max(4|A|^3, 27B^2) < 300"),
+        "{out}"
+    );
+    assert!(err.is_empty(), "--quiet: {err}");
+    let o2 = qorbits(&["selmer-stats", "--height", "300", "--quiet", "--jobs", "2"]);
+    assert_eq!(
+        o.stdout, o2.stdout,
+        "the output does not depend on the threads"
+    );
+    let o = qorbits(&[
+        "selmer-stats",
+        "--height",
+        "300",
+        "--quiet",
+        "--json",
+        "--curves",
+    ]);
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let ranks = v["ranks"].as_array().unwrap();
+    assert_eq!(v["curves"].as_u64().unwrap() as usize, ranks.len());
+    let total: u64 = ranks
+        .iter()
+        .map(|r| 1u64 << r["selmer_rank"].as_u64().unwrap())
+        .sum();
+    let avg = v["average"].as_f64().unwrap();
+    assert!((avg - total as f64 / ranks.len() as f64).abs() < 1e-12);
+    let binned: u64 = v["bins"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|b| b["curves"].as_u64().unwrap())
+        .sum();
+    assert_eq!(binned as usize, ranks.len());
+}
