@@ -60,6 +60,8 @@ struct Component {
     disc: Integer,
     /// Degree-one primes `(p, r)`: p odd, `p ∤ disc`, `g(r) ≡ 0 (mod p)`.
     places: Vec<(u64, u64)>,
+    /// The complex roots of g (degree ≥ 2), at a precision enough for most square tests.
+    roots: Vec<Complex>,
 }
 
 /// The algebra `L = Q[φ]/(φ³ − 3Iφ + J)` of a pair (I, J) with `4I³ ≠ J²`, as a product of
@@ -111,9 +113,13 @@ impl Algebra {
                     g,
                     disc,
                     places: Vec::new(),
+                    roots: Vec::new(),
                 };
                 if c.g.len() > 2 {
                     c.places = degree_one_places(&c, 2, PLACES);
+                    let size = c.g.iter().map(Integer::significant_bits).max().unwrap_or(1);
+                    let prec = 128 + 2 * c.disc.significant_bits() + 4 * size + 32;
+                    c.roots = complex_roots(&c.g, prec);
                 }
                 c
             })
@@ -275,14 +281,41 @@ fn degree_one_places(c: &Component, from: u64, count: usize) -> Vec<(u64, u64)> 
             continue;
         }
         let g: Vec<u64> = c.g.iter().map(|x| x.mod_u(p as u32) as u64).collect();
-        for r in crate::fp::roots(&g, p) {
-            out.push((p, r));
+        if p < 1 << 12 {
+            roots_by_differences(&g, p, |r| out.push((p, r)));
+        } else {
+            out.extend(crate::fp::roots(&g, p).into_iter().map(|r| (p, r)));
         }
         if out.len() >= count {
             break;
         }
     }
     out
+}
+
+/// Every root in F_p of `g` (ascending coefficients reduced mod p, degree n ≤ 3), by
+/// walking x = 0, 1, …, p − 1 with the forward differences of g: n additions per step.
+fn roots_by_differences(g: &[u64], p: u64, mut found: impl FnMut(u64)) {
+    let n = g.len() - 1;
+    let value = |x: u64| g.iter().rev().fold(0, |acc, c| (acc * x + c) % p);
+    // d[k] = Δᵏg(0), from g(0), …, g(n).
+    let mut d: Vec<u64> = (0..=n as u64).map(value).collect();
+    for k in 1..=n {
+        for m in (k..=n).rev() {
+            d[m] = (d[m] + p - d[m - 1]) % p;
+        }
+    }
+    for x in 0..p {
+        if d[0] == 0 {
+            found(x);
+        }
+        for k in 0..n {
+            d[k] += d[k + 1];
+            if d[k] >= p {
+                d[k] -= p;
+            }
+        }
+    }
 }
 
 fn eval_mod(x: &[Integer], r: u64, p: u64) -> u64 {
@@ -389,32 +422,7 @@ fn complex_roots(g: &[Integer], prec: u32) -> Vec<Complex> {
             Complex::with_val(prec, (fl(&g[0]), 0)),
         );
     }
-    // A real root by bisection: g(−M) < 0 < g(M) for M = 1 + max |gₖ|.
-    let m = Float::with_val(prec, 1)
-        + fl(g
-            .iter()
-            .take(3)
-            .map(|x| x.clone().abs())
-            .max()
-            .as_ref()
-            .unwrap());
-    let eval = |x: &Float| {
-        let mut acc = Float::with_val(prec + 32, 1);
-        for k in (0..3).rev() {
-            acc = acc * x + &g[k];
-        }
-        acc
-    };
-    let (mut lo, mut hi) = (Float::with_val(prec, -&m), m);
-    for _ in 0..prec + 8 {
-        let mid = Float::with_val(prec, &lo + &hi) / 2u32;
-        if eval(&mid) < 0 {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    let r = lo;
+    let r = real_root_of_cubic(g, prec);
     // Deflate: g = (x − r)(x² + (g₂ + r)x + (g₁ + r(g₂ + r))).
     let b = Float::with_val(prec, &r + &g[2]);
     let cc = Float::with_val(prec, &r * &b) + &g[1];
@@ -426,11 +434,130 @@ fn complex_roots(g: &[Integer], prec: u32) -> Vec<Complex> {
     out
 }
 
+/// `(lo, hi)` after `steps` halvings of a bracket of a monic cubic's root (g(lo) < 0 ≤ g(hi)).
+fn bisect(g: &[Integer], mut lo: Float, mut hi: Float, steps: u32, prec: u32) -> (Float, Float) {
+    for _ in 0..steps {
+        let mid = Float::with_val(prec, &lo + &hi) / 2u32;
+        let mut v = Float::with_val(prec + 32, 1);
+        for k in (0..3).rev() {
+            v = v * &mid + &g[k];
+        }
+        if v < 0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    (lo, hi)
+}
+
+/// A real root of a monic cubic to about `prec` bits: bisection at low precision from
+/// `[−M, M]` (M = 1 + max |gₖ|, so g(−M) < 0 < g(M)), then Newton at full precision inside
+/// the bracket, with plain bisection as the fallback when Newton leaves it or stalls.
+fn real_root_of_cubic(g: &[Integer], prec: u32) -> Float {
+    if let Some(x) = real_root_from_f64(g, prec) {
+        return x;
+    }
+    let mbits = g.iter().map(Integer::significant_bits).max().unwrap_or(1) + 2;
+    let low = mbits + 96;
+    let m = Float::with_val(
+        low,
+        g.iter().take(3).map(|x| x.clone().abs()).max().unwrap(),
+    ) + 1u32;
+    let (lo, hi) = bisect(g, Float::with_val(low, -&m), m, mbits + 80, low);
+    let (lo, hi) = (Float::with_val(prec, lo), Float::with_val(prec, hi));
+    let mut x = Float::with_val(prec, &lo + &hi) / 2u32;
+    for _ in 0..64 {
+        // g(x) and g'(x) by Horner.
+        let (mut v, mut d) = (Float::with_val(prec + 32, 1), Float::with_val(prec + 32, 0));
+        for k in (0..3).rev() {
+            d = d * &x + &v;
+            v = v * &x + &g[k];
+        }
+        if d == 0 {
+            break;
+        }
+        let step = v / d;
+        x -= &step;
+        if x < lo || x > hi {
+            break;
+        }
+        let tiny = match (step.get_exp(), x.get_exp()) {
+            (None, _) => true,
+            (Some(es), Some(ex)) => es < ex - prec as i32 + 4,
+            (Some(es), None) => es < -(prec as i32),
+        };
+        if tiny {
+            return x;
+        }
+    }
+    bisect(g, lo, hi, prec + 8, prec).0
+}
+
+/// The fast path of [`real_root_of_cubic`]: a root by bisection in f64, polished by Newton
+/// at full precision; `None` when Newton wanders off or stalls (then the caller bisects).
+fn real_root_from_f64(g: &[Integer], prec: u32) -> Option<Float> {
+    let c: Vec<f64> = g.iter().map(Integer::to_f64).collect();
+    let m = 1.0 + c[..3].iter().fold(0.0f64, |a, x| a.max(x.abs()));
+    if !m.is_finite() || m > 1e100 {
+        return None;
+    }
+    let value = |x: f64| ((x + c[2]) * x + c[1]) * x + c[0];
+    let (mut lo, mut hi) = (-m, m);
+    for _ in 0..400 {
+        let mid = 0.5 * (lo + hi);
+        if mid <= lo || mid >= hi {
+            break;
+        }
+        if value(mid) < 0.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    let x0 = 0.5 * (lo + hi);
+    let width = x0.abs().max(1.0) * 1e-6;
+    let (a, b) = (x0 - width, x0 + width);
+    let mut x = Float::with_val(prec, x0);
+    for _ in 0..64 {
+        let (mut v, mut d) = (Float::with_val(prec + 32, 1), Float::with_val(prec + 32, 0));
+        for k in (0..3).rev() {
+            d = d * &x + &v;
+            v = v * &x + &g[k];
+        }
+        if d == 0 {
+            return None;
+        }
+        let step = v / d;
+        x -= &step;
+        if x < a || x > b {
+            return None;
+        }
+        let tiny = match (step.get_exp(), x.get_exp()) {
+            (None, _) => true,
+            (Some(es), Some(ex)) => es < ex - prec as i32 + 4,
+            (Some(es), None) => es < -(prec as i32),
+        };
+        if tiny {
+            return Some(x);
+        }
+    }
+    None
+}
+
 /// A square root of `u` modulo `g` found numerically at precision `prec` and verified
 /// exactly: `Some(true)` when verified, `Some(false)` when no rounding verified.
 fn numerical_root(u: &[Integer], c: &Component, prec: u32) -> Option<bool> {
     let n = c.g.len() - 1;
-    let theta = complex_roots(&c.g, prec);
+    let fresh;
+    let theta: &[Complex] = match c.roots.first() {
+        Some(r) if r.prec().0 >= prec => &c.roots,
+        _ => {
+            fresh = complex_roots(&c.g, prec);
+            &fresh
+        }
+    };
+    let prec = theta[0].prec().0;
     let values: Vec<Complex> = theta
         .iter()
         .map(|t| {
@@ -522,6 +649,7 @@ mod tests {
             g: vec![int(-5), int(0), int(1)],
             disc: int(20),
             places: Vec::new(),
+            roots: Vec::new(),
         };
         // ((1 + √5)/2)² = (3 + √5)/2 is not in Z[√5], but 4·that = 6 + 2√5 is a square.
         assert!(is_square(&[int(6), int(2)], &c).unwrap());

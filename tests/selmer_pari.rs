@@ -135,6 +135,7 @@ fn selmer_ranks_match_pari_ellrank() {
             }
         }
     }
+    println!("{} curves, by 2-Selmer rank 0..4+: {by_rank:?}", curves.len());
     assert!(
         by_rank[2] >= 20 && by_rank[3] >= 16,
         "ranks 0..4+: {by_rank:?}"
