@@ -30,7 +30,8 @@ CREATE TABLE classes (
   stabiliser    INTEGER NOT NULL,
   els           INTEGER NOT NULL,
   insoluble_at  TEXT    NOT NULL,
-  -- For an everywhere locally soluble irreducible class: the label of the first class (in
+  -- For an everywhere locally soluble class without a rational root (irreducible, or two
+  -- quadratic factors in a table with reducible classes): the label of the first class (in
   -- row order) with the same (I, J) that is equivalent to it over Q (GL2(Q), scaled to keep
   -- I and J). NULL for the other classes.
   rational_class TEXT
@@ -57,7 +58,7 @@ CREATE TABLE pairs (
   irreducible  INTEGER NOT NULL,
   reducible    INTEGER,
   els          INTEGER NOT NULL,
-  -- Number of classes over Q among the els irreducible classes of the pair.
+  -- Number of classes over Q among the els classes of the pair without a rational root.
   rational_els INTEGER NOT NULL
 );
 

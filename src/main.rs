@@ -106,6 +106,14 @@ enum Command {
         /// Only the everywhere locally soluble classes.
         #[arg(long)]
         els: bool,
+        /// Only the first class of each class over Q among the everywhere locally soluble
+        /// irreducible classes (for E_{I,J} without rational 2-torsion: one quartic per
+        /// non-trivial 2-Selmer element these invariants carry).
+        #[arg(long)]
+        over_q: bool,
+        /// No progress spinner while the classes are computed.
+        #[arg(long)]
+        quiet: bool,
     },
     /// Print a BibTeX entry and a CITATION.cff fragment for a table.
     Cite {
@@ -129,6 +137,9 @@ enum Command {
         /// Print one JSON object instead of text.
         #[arg(long)]
         json: bool,
+        /// No progress spinner.
+        #[arg(long)]
+        quiet: bool,
     },
     /// Average size of the 2-Selmer group over the curves y^2 = x^3 + A x + B of height
     /// max(4|A|^3, 27B^2) below Y without rational 2-torsion.
@@ -218,6 +229,20 @@ fn progress_bar(quiet: bool, what: &str) -> ProgressBar {
             .progress_chars("=> "),
     );
     p.set_message(what.to_string());
+    p
+}
+
+/// A spinner on stderr for work of unknown length (hidden with `quiet` or off a terminal).
+fn spinner(quiet: bool, what: &str) -> ProgressBar {
+    if quiet {
+        return ProgressBar::hidden();
+    }
+    let p = ProgressBar::with_draw_target(None, ProgressDrawTarget::stderr());
+    p.set_style(
+        ProgressStyle::with_template("{spinner} {msg}, {elapsed}").expect("valid template"),
+    );
+    p.set_message(what.to_string());
+    p.enable_steady_tick(std::time::Duration::from_millis(200));
     p
 }
 
@@ -347,8 +372,10 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
             json,
             csv,
             els,
+            over_q,
             count,
             include_reducible,
+            quiet,
         } => {
             let (i, j) = (parse_int("I", &i)?, parse_int("J", &j)?);
             if let Some(why) = qorbits::by_invariants::refusal(&i, &j) {
@@ -381,13 +408,22 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
             }
             let mut rows = match from_table {
                 Some(rows) => rows,
-                None => qorbits::by_invariants::classes_with_invariants(&i, &j, include_reducible)?,
+                None => {
+                    let wait = spinner(quiet, &format!("classes with I = {i}, J = {j}"));
+                    let rows =
+                        qorbits::by_invariants::classes_with_invariants(&i, &j, include_reducible);
+                    wait.finish_and_clear();
+                    rows?
+                }
             };
             if !include_reducible {
                 rows.retain(|r| r.galois.is_some());
             }
             if els {
                 rows.retain(|r| r.els());
+            }
+            if over_q {
+                rows.retain(|r| r.rational.as_ref() == Some(&r.label));
             }
             if count {
                 println!("{}", rows.len());
@@ -417,7 +453,12 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
             let conn = open_table(&file)?;
             print!("{}", report::stats(&conn)?);
         }
-        Command::Selmer { ainvs, short, json } => {
+        Command::Selmer {
+            ainvs,
+            short,
+            json,
+            quiet,
+        } => {
             let curve = match (ainvs, short) {
                 (Some(a), _) => {
                     let mut c = Vec::with_capacity(5);
@@ -429,8 +470,11 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
                 (None, Some(s)) => Curve::short(parse_int("A", &s[0])?, parse_int("B", &s[1])?)?,
                 (None, None) => unreachable!("clap requires --ainvs or --short"),
             };
-            let s = two_selmer(&curve)?;
-            print!("{}", report::selmer(&curve, &s, json));
+            let (i, j) = curve.quartic_invariants();
+            let wait = spinner(quiet, &format!("classes with I = {i}, J = {j}"));
+            let s = two_selmer(&curve);
+            wait.finish_and_clear();
+            print!("{}", report::selmer(&curve, &s?, json));
         }
         Command::SelmerStats {
             height,

@@ -270,6 +270,7 @@ pub fn selmer(curve: &Curve, s: &Selmer, json: bool) -> String {
             "I": s.i.to_string(),
             "J": s.j.to_string(),
             "selmer_rank": s.rank,
+            "two_torsion_rank": s.two_torsion_rank,
             "selmer_order": 1u64 << s.rank,
             "irreducible_classes": s.irreducible_classes,
             "els_classes": s.els_classes,
@@ -286,9 +287,10 @@ pub fn selmer(curve: &Curve, s: &Selmer, json: bool) -> String {
     writeln!(w, "c4, c6         {}, {}", curve.c4(), curve.c6()).expect("string");
     writeln!(w, "discriminant   {}", curve.discriminant()).expect("string");
     writeln!(w, "quartics       I = {}, J = {}", s.i, s.j).expect("string");
+    writeln!(w, "2-torsion      rank {} over Q", s.two_torsion_rank).expect("string");
     writeln!(
         w,
-        "classes        {} irreducible, {} everywhere locally soluble, {} over Q",
+        "classes        {} without a rational root, {} everywhere locally soluble, {} over Q",
         s.irreducible_classes,
         s.els_classes,
         s.elements.len()

@@ -1,23 +1,20 @@
-//! 2-Selmer groups of elliptic curves over Q without rational 2-torsion, from the classes of
-//! integral binary quartic forms with invariants `(I, J) = (c4, 2·c6)`, and the average
-//! size of the 2-Selmer group over a family of short Weierstrass curves.
+//! 2-Selmer groups of elliptic curves over Q from the classes of integral binary quartic
+//! forms with invariants `(I, J) = (c4, 2·c6)`, and the average size of the 2-Selmer group
+//! over a family of short Weierstrass curves.
 //!
 //! The curve `E: y² + a1xy + a3y = x³ + a2x² + a4x + a6` is isomorphic over Q to
 //! `E_{I,J}: y² = x³ − 27Ix − 27J` for `(I, J) = (c4, 2c6)` (substitute x ↦ x/36 − b2/12
 //! and scale by u = 1/6). A form with these invariants gives a 2-covering of E; the
 //! everywhere locally soluble ones give elements of the 2-Selmer group, and two forms give
-//! the same element exactly when they are equivalent over Q ([`crate::rational`]). When E
-//! has no rational point of order 2, a form with a rational root gives the trivial element
-//! and a form that factors into two quadratics over Q does not occur (its pairing of roots
-//! would be a rational root of the resolvent), so the non-trivial elements are the classes
-//! over Q of the everywhere locally soluble *irreducible* classes, and
-//! `#Sel² = 1 + (number of those classes over Q)`. That every element has an integral
+//! the same element exactly when they are equivalent over Q ([`crate::rational`]). A form
+//! with a rational root gives the trivial element, so the non-trivial elements are the
+//! classes over Q of the everywhere locally soluble forms without a rational root, and
+//! `#Sel² = 1 + (number of those classes over Q)`. Without rational 2-torsion these forms
+//! are irreducible (a form with two quadratic factors over Q pairs its roots rationally,
+//! which is a rational root of the resolvent); with it, forms with two quadratic factors
+//! occur too, and the search includes reducible forms. That every element has an integral
 //! representative with exactly these invariants is a published fact of 2-descent, recalled
 //! from memory and checked by the tests against PARI/GP.
-//!
-//! Curves with a rational point of order 2 are refused: there the resolvent algebra splits
-//! and forms with a quadratic factor carry Selmer elements; this module does not count
-//! them.
 //!
 //! ```
 //! use qorbits::selmer::{two_selmer, Curve};
@@ -30,8 +27,8 @@
 
 use crate::by_invariants::classes_with_invariants;
 use crate::error::{Error, Result};
-use crate::galois::{resolvent_roots, FactorPattern};
-use crate::table::ClassRow;
+use crate::galois::resolvent_roots;
+use crate::table::{without_rational_root, ClassRow};
 use indicatif::ProgressBar;
 use rayon::prelude::*;
 use rug::Integer;
@@ -109,9 +106,11 @@ impl Curve {
     }
 }
 
-/// The 2-Selmer group of a curve without rational 2-torsion.
+/// The 2-Selmer group of a curve.
 #[derive(Clone, Debug)]
 pub struct Selmer {
+    /// The rank of E(Q)[2]: 0, 1 or 2.
+    pub two_torsion_rank: u32,
     /// Invariant I = c4 of the quartics.
     pub i: Integer,
     /// Invariant J = 2·c6 of the quartics.
@@ -119,28 +118,30 @@ pub struct Selmer {
     /// The 2-Selmer rank: `#Sel² = 2^rank`.
     pub rank: u32,
     /// One canonical quartic per non-trivial element: the first class (in table order) of
-    /// each class over Q.
+    /// each class over Q (irreducible, or `2+2` when E has rational 2-torsion).
     pub elements: Vec<ClassRow>,
-    /// All everywhere locally soluble irreducible classes with these invariants.
+    /// All everywhere locally soluble classes without a rational root with these
+    /// invariants.
     pub els_classes: usize,
-    /// All irreducible classes with these invariants.
+    /// All classes without a rational root (irreducible, or `2+2`) with these invariants.
     pub irreducible_classes: usize,
 }
 
-/// The 2-Selmer group of `curve`; refuses curves with a rational point of order 2.
+/// The 2-Selmer group of `curve`.
 pub fn two_selmer(curve: &Curve) -> Result<Selmer> {
-    if let Some(x) = curve.two_torsion() {
-        return Err(Error::Input(format!(
-            "the curve {} has a rational point of order 2 (x = {x} on y² = x³ − 27c4·x − 54c6); \
-             selmer handles curves without rational 2-torsion only",
-            curve.name()
-        )));
-    }
     let (i, j) = curve.quartic_invariants();
-    let rows = classes_with_invariants(&i, &j, false)?;
+    let torsion = resolvent_roots(&i, &j)
+        .expect("big integers do not overflow")
+        .len();
+    let two_torsion_rank = match torsion {
+        0 => 0,
+        1 => 1,
+        _ => 2,
+    };
+    let rows = classes_with_invariants(&i, &j, torsion > 0)?;
     let irreducible_classes = rows
         .iter()
-        .filter(|r| r.pattern == FactorPattern::Irreducible)
+        .filter(|r| without_rational_root(r.pattern))
         .count();
     let els_classes = rows.iter().filter(|r| r.rational.is_some()).count();
     let elements: Vec<ClassRow> = rows
@@ -157,6 +158,7 @@ pub fn two_selmer(curve: &Curve) -> Result<Selmer> {
         )));
     }
     Ok(Selmer {
+        two_torsion_rank,
         i,
         j,
         rank: size.trailing_zeros(),

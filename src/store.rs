@@ -240,11 +240,12 @@ fn check_rows(params: &Params, rows: &[ClassRow]) -> Result<()> {
         if irreducible != r.galois.is_some() {
             return Err(bad("has a Galois group exactly when it is reducible"));
         }
-        let grouped = irreducible && !r.local.is_empty() && r.els();
+        let grouped =
+            crate::table::without_rational_root(r.pattern) && !r.local.is_empty() && r.els();
         if r.rational.is_some() != grouped {
             return Err(bad(
-                "has a class over Q exactly when it is not an els irreducible class; order and \
-                 label rows with table::order_and_label",
+                "has a class over Q exactly when it is not an els class without a rational root; \
+                 order and label rows with table::order_and_label",
             ));
         }
         if !irreducible && !params.include_reducible {

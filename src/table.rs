@@ -56,9 +56,9 @@ pub struct ClassRow {
     pub stabiliser: u8,
     /// Stable label (module doc).
     pub label: String,
-    /// For an everywhere locally soluble irreducible class: the label of the first class
-    /// (in table order) of its class over Q among the classes with the same (I, J)
-    /// (module doc of [`crate::rational`]); `None` otherwise.
+    /// For an everywhere locally soluble class without a rational root (irreducible, or
+    /// `2+2`): the label of the first class (in table order) of its class over Q among the
+    /// classes with the same (I, J) (module doc of [`crate::rational`]); `None` otherwise.
     pub rational: Option<String>,
     /// Local data: every prime dividing 2·Disc in increasing order, then infinity.
     pub local: Vec<LocalRow>,
@@ -219,7 +219,8 @@ fn run_task(
 }
 
 /// Put rows in table order, give them their labels and group the everywhere locally
-/// soluble irreducible classes of each pair into classes over Q (the `rational` column).
+/// soluble classes without a rational root of each pair into classes over Q (the
+/// `rational` column).
 pub fn order_and_label(rows: &mut [ClassRow]) -> Result<()> {
     rows.sort_by_key(ClassRow::key);
     let mut pairs = Vec::new();
@@ -259,14 +260,23 @@ pub fn order_and_label(rows: &mut [ClassRow]) -> Result<()> {
     Ok(())
 }
 
-/// The classes over Q of the everywhere locally soluble irreducible rows of one pair, as
-/// (index in `rows`, label of the first row of its class). Rows without local data get
-/// none.
+/// Whether forms with this pattern have no rational root: irreducible, or two irreducible
+/// quadratics. These are the forms whose classes over Q the `rational` column records.
+pub fn without_rational_root(p: FactorPattern) -> bool {
+    matches!(
+        p,
+        FactorPattern::Irreducible | FactorPattern::QuadraticQuadratic
+    )
+}
+
+/// The classes over Q of the everywhere locally soluble rows without a rational root
+/// (irreducible, or `2+2` in tables with reducible classes) of one pair, as (index in
+/// `rows`, label of the first row of its class). Rows without local data get none.
 pub fn rational_classes(rows: &[ClassRow]) -> Result<Vec<(usize, String)>> {
     let members: Vec<usize> = (0..rows.len())
         .filter(|&k| {
             let r = &rows[k];
-            r.pattern == FactorPattern::Irreducible && !r.local.is_empty() && r.els()
+            without_rational_root(r.pattern) && !r.local.is_empty() && r.els()
         })
         .collect();
     match members.as_slice() {

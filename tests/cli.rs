@@ -172,8 +172,30 @@ fn selmer_prints_rank_and_elements() {
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(v["selmer_rank"], 2);
     assert_eq!(v["elements"].as_array().unwrap().len(), 3);
+    // The same three quartics from the search by invariants, one per class over Q.
+    let o = qorbits(&[
+        "classes", "--I", "336", "--J", "-17280", "--over-q", "--json", "--quiet",
+    ]);
+    let rows: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let forms: Vec<_> = rows
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["canonical"].clone())
+        .collect();
+    let elements: Vec<_> = v["elements"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|e| e["quartic"].clone())
+        .collect();
+    assert_eq!(forms, elements);
+    // y² = x³ − x: three points of order 2, 2-Selmer rank 2 (the torsion), from memory
+    // rank 0 (congruent number curve of n = 1); PARI's ellrank agrees in the tests.
+    let o = qorbits(&["selmer", "--short", "-1", "0", "--json", "--quiet"]);
+    let t: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!((t["selmer_rank"].as_u64(), t["two_torsion_rank"].as_u64()), (Some(2), Some(2)));
     for args in [
-        vec!["selmer", "--short", "-1", "0"], // three points of order 2
         vec!["selmer", "--short", "-3", "2"], // singular
         vec!["selmer", "--short", "x", "2"],
         vec!["selmer", "--ainvs", "0", "0", "1"],
