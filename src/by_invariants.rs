@@ -27,7 +27,12 @@ use crate::form::{eligible, invariants_from_ij, Form};
 use crate::int::Int;
 use crate::table::{annotate, order_and_label, ClassRow};
 use rayon::prelude::*;
+use rug::ops::Pow;
 use rug::Integer;
+
+/// The search refuses pairs with `H ≥ 10^MAX_HEIGHT_EXP` (its cost grows as H^{1/2}: about
+/// 32 s at 10¹⁵ on two cores, see `benches/invariants.rs`).
+pub const MAX_HEIGHT_EXP: u32 = 21;
 
 /// Why (I, J) has no classes at all, if so: not eligible, or Disc = 0.
 pub fn refusal(i: &Integer, j: &Integer) -> Option<String> {
@@ -143,6 +148,13 @@ pub fn classes_with_invariants(
     let h4 = invariants_from_ij(Integer::from(ii), Integer::from(jj))
         .expect("eligible")
         .h4;
+    if h4 >= Integer::from(4) * Integer::from(10).pow(MAX_HEIGHT_EXP) {
+        return Err(Error::TooLarge(format!(
+            "(I, J) = ({i}, {j}) has height H ≥ 1e{MAX_HEIGHT_EXP}: the search by invariants costs \
+             about H^(1/2) steps (some 9 hours per pair at 1e21 on two cores), so it is refused \
+             above that"
+        )));
+    }
     let k = (h4.to_f64() / 4.0).powf(1.0 / 6.0) * (1.0 + SLACK);
     let ym = y_min();
     let mut tasks = Vec::new();

@@ -194,10 +194,14 @@ fn selmer_prints_rank_and_elements() {
     // rank 0 (congruent number curve of n = 1); PARI's ellrank agrees in the tests.
     let o = qorbits(&["selmer", "--short", "-1", "0", "--json", "--quiet"]);
     let t: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
-    assert_eq!((t["selmer_rank"].as_u64(), t["two_torsion_rank"].as_u64()), (Some(2), Some(2)));
+    assert_eq!(
+        (t["selmer_rank"].as_u64(), t["two_torsion_rank"].as_u64()),
+        (Some(2), Some(2))
+    );
     for args in [
         vec!["selmer", "--short", "-3", "2"], // singular
         vec!["selmer", "--short", "x", "2"],
+        vec!["selmer", "--short", "100000000", "1"], // H ≈ 1e29: refused, not hours of search
         vec!["selmer", "--ainvs", "0", "0", "1"],
         vec!["selmer"],
         vec!["selmer-stats", "--height", "-5"],
