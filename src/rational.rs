@@ -466,7 +466,14 @@ fn real_root_of_cubic(g: &[Integer], prec: u32) -> Float {
     ) + 1u32;
     let (lo, hi) = bisect(g, Float::with_val(low, -&m), m, mbits + 80, low);
     let (lo, hi) = (Float::with_val(prec, lo), Float::with_val(prec, hi));
-    let mut x = Float::with_val(prec, &lo + &hi) / 2u32;
+    let start = Float::with_val(prec, &lo + &hi) / 2u32;
+    newton(g, start, &lo, &hi, prec).unwrap_or_else(|| bisect(g, lo, hi, prec + 8, prec).0)
+}
+
+/// Newton's method for a monic cubic at precision `prec` from `x`, as long as the iterates
+/// stay in `[lo, hi]`: the root once the step is below the precision, `None` when an
+/// iterate leaves the interval, the derivative vanishes or 64 steps do not converge.
+fn newton(g: &[Integer], mut x: Float, lo: &Float, hi: &Float, prec: u32) -> Option<Float> {
     for _ in 0..64 {
         // g(x) and g'(x) by Horner.
         let (mut v, mut d) = (Float::with_val(prec + 32, 1), Float::with_val(prec + 32, 0));
@@ -475,12 +482,12 @@ fn real_root_of_cubic(g: &[Integer], prec: u32) -> Float {
             v = v * &x + &g[k];
         }
         if d == 0 {
-            break;
+            return None;
         }
         let step = v / d;
         x -= &step;
-        if x < lo || x > hi {
-            break;
+        if x < *lo || x > *hi {
+            return None;
         }
         let tiny = match (step.get_exp(), x.get_exp()) {
             (None, _) => true,
@@ -488,10 +495,10 @@ fn real_root_of_cubic(g: &[Integer], prec: u32) -> Float {
             (Some(es), None) => es < -(prec as i32),
         };
         if tiny {
-            return x;
+            return Some(x);
         }
     }
-    bisect(g, lo, hi, prec + 8, prec).0
+    None
 }
 
 /// The fast path of [`real_root_of_cubic`]: a root by bisection in f64, polished by Newton
@@ -517,32 +524,11 @@ fn real_root_from_f64(g: &[Integer], prec: u32) -> Option<Float> {
     }
     let x0 = 0.5 * (lo + hi);
     let width = x0.abs().max(1.0) * 1e-6;
-    let (a, b) = (x0 - width, x0 + width);
-    let mut x = Float::with_val(prec, x0);
-    for _ in 0..64 {
-        let (mut v, mut d) = (Float::with_val(prec + 32, 1), Float::with_val(prec + 32, 0));
-        for k in (0..3).rev() {
-            d = d * &x + &v;
-            v = v * &x + &g[k];
-        }
-        if d == 0 {
-            return None;
-        }
-        let step = v / d;
-        x -= &step;
-        if x < a || x > b {
-            return None;
-        }
-        let tiny = match (step.get_exp(), x.get_exp()) {
-            (None, _) => true,
-            (Some(es), Some(ex)) => es < ex - prec as i32 + 4,
-            (Some(es), None) => es < -(prec as i32),
-        };
-        if tiny {
-            return Some(x);
-        }
-    }
-    None
+    let (a, b) = (
+        Float::with_val(prec, x0 - width),
+        Float::with_val(prec, x0 + width),
+    );
+    newton(g, Float::with_val(prec, x0), &a, &b, prec)
 }
 
 /// A square root of `u` modulo `g` found numerically at precision `prec` and verified
@@ -617,6 +603,7 @@ fn numerical_root(u: &[Integer], c: &Component, prec: u32) -> Option<bool> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use rug::ops::Pow;
 
     fn int(v: i64) -> Integer {
         Integer::from(v)
@@ -639,6 +626,31 @@ mod tests {
             let times2: Vec<Integer> = sq.iter().map(|v| Integer::from(2 * v)).collect();
             assert!(!is_square(&times2, c).unwrap(), "2·{x:?}²");
         }
+    }
+
+    #[test]
+    fn roots_of_huge_cubics_take_the_bisection_path() {
+        // Coefficients beyond f64's range for the fast path: the fallback must still give a
+        // root, and the square test must still decide.
+        let i: Integer = Integer::from(10).pow(70) + 7;
+        let j: Integer = Integer::from(10).pow(104) * 3 + 1;
+        let l = Algebra::new(&i, &j).unwrap();
+        assert_eq!(l.degrees(), vec![3]);
+        let c = &l.components[0];
+        assert!(real_root_from_f64(&c.g, 400).is_none(), "m > 1e100");
+        let r = real_root_of_cubic(&c.g, 600);
+        let mut v = Float::with_val(700, 1);
+        for k in (0..3).rev() {
+            v = v * &r + &c.g[k];
+        }
+        let scale = Float::with_val(700, &j);
+        let rel = Float::with_val(700, v.abs_ref()) / scale;
+        assert!(rel < 1e-100, "{rel}");
+        let x = vec![int(12345), int(-678), int(9)];
+        let sq = mul_mod(&x, &x, &c.g);
+        assert!(is_square(&sq, c).unwrap());
+        let times3: Vec<Integer> = sq.iter().map(|v| Integer::from(3 * v)).collect();
+        assert!(!is_square(&times3, c).unwrap());
     }
 
     #[test]
