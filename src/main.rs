@@ -107,8 +107,8 @@ enum Command {
         #[arg(long)]
         els: bool,
         /// Only the first class of each class over Q among the everywhere locally soluble
-        /// irreducible classes (for E_{I,J} without rational 2-torsion: one quartic per
-        /// non-trivial 2-Selmer element these invariants carry).
+        /// classes without a rational root (one quartic per non-trivial 2-Selmer element of
+        /// y^2 = x^3 - 27I x - 27J that these invariants carry).
         #[arg(long)]
         over_q: bool,
         /// No progress spinner while the classes are computed.

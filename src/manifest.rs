@@ -62,8 +62,8 @@ pub struct Counts {
     pub by_galois: BTreeMap<String, u64>,
     /// Everywhere locally soluble classes.
     pub els: u64,
-    /// Classes over Q of the everywhere locally soluble irreducible classes, summed over
-    /// the pairs.
+    /// Classes over Q of the everywhere locally soluble classes without a rational root,
+    /// summed over the pairs.
     pub rational_els: u64,
 }
 
