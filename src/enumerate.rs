@@ -112,10 +112,22 @@ pub(crate) fn int_range(lo: f64, hi: f64) -> (i64, i64) {
     ((lo - w).ceil() as i64, (hi + w).floor() as i64)
 }
 
-/// `⌊n/d⌋` for any signs (d ≠ 0).
+/// `⌊n/d⌋` for any signs (d ≠ 0). On 64-bit operands (almost always in the loops) it uses
+/// the machine division; `i128` division is a library call several times slower.
 fn floor_div(n: i128, d: i128) -> i128 {
+    if let (Ok(n), Ok(d)) = (i64::try_from(n), i64::try_from(d)) {
+        if let Some(q) = n.checked_div(d) {
+            let r = n - q * d;
+            return i128::from(if r != 0 && ((r < 0) != (d < 0)) {
+                q - 1
+            } else {
+                q
+            });
+        }
+    }
     let q = n / d;
-    if n % d != 0 && ((n < 0) != (d < 0)) {
+    let r = n - q * d;
+    if r != 0 && ((r < 0) != (d < 0)) {
         q - 1
     } else {
         q
@@ -334,6 +346,14 @@ mod tests {
         }
         // −24·e + 4 ∈ [−21, 21]  ⇔  e ∈ {0, 1}
         assert_eq!(linear_range(-24, 4, -21, 21), (0, 1));
+        // The i64 fast path and the i128 path agree, also at the edges of i64.
+        let m = i128::from(i64::MIN);
+        assert_eq!(floor_div(m, -1), -m, "i64::MIN / −1 overflows i64");
+        assert_eq!(floor_div(m, 7), (m - 6) / 7);
+        let big = 10i128.pow(30) + 1;
+        assert_eq!(floor_div(-big, 10), -(10i128.pow(29)) - 1);
+        assert_eq!(ceil_div(big, 10), 10i128.pow(29) + 1);
+        assert_eq!(floor_div(big, -big), -1);
     }
 
     #[test]
