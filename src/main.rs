@@ -13,7 +13,7 @@ use qorbits::selmer::{selmer_stats, two_selmer, Curve};
 use qorbits::store::{
     classes_with_invariants, content_sha256, open_table, table_params, write_table,
 };
-use qorbits::table::{enumerate_classes, Params};
+use qorbits::table::{enumerate_classes, ClassRow, Params};
 use rug::ops::Pow;
 use rug::Integer;
 use std::path::{Path, PathBuf};
@@ -423,7 +423,7 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
                 rows.retain(|r| r.els());
             }
             if over_q {
-                rows.retain(|r| r.rational.as_ref() == Some(&r.label));
+                rows.retain(ClassRow::first_over_q);
             }
             if count {
                 println!("{}", rows.len());

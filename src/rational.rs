@@ -189,11 +189,9 @@ impl Algebra {
         Some(Element { parts })
     }
 
-    /// Whether the forms of `x` and `y` are equivalent over Q (`x·y` a square in L).
+    /// Whether the forms of `x` and `y` are equivalent over Q (`x·y` a square in L; the
+    /// square test starts with the residue symbols at the first degree-one primes).
     pub fn equivalent(&self, x: &Element, y: &Element) -> Result<bool> {
-        if self.conflict(&self.residues(x), &self.residues(y)) {
-            return Ok(false);
-        }
         for (k, c) in self.components.iter().enumerate() {
             let u = mul_mod(&x.parts[k], &y.parts[k], &c.g);
             if !is_square(&u, c)? {

@@ -28,6 +28,7 @@
 use crate::by_invariants::classes_with_invariants;
 use crate::error::{Error, Result};
 use crate::galois::resolvent_roots;
+use crate::poly::integer_roots;
 use crate::table::{without_rational_root, ClassRow};
 use indicatif::ProgressBar;
 use rayon::prelude::*;
@@ -99,6 +100,19 @@ impl Curve {
         roots.into_iter().next().map(|phi| Integer::from(-3) * phi)
     }
 
+    /// The rank of E(Q)[2]: 0, 1 or 2 for 0, 1 or 3 rational roots of the resolvent.
+    pub fn two_torsion_rank(&self) -> u32 {
+        let (i, j) = self.quartic_invariants();
+        match resolvent_roots(&i, &j)
+            .expect("big integers do not overflow")
+            .len()
+        {
+            0 => 0,
+            1 => 1,
+            _ => 2,
+        }
+    }
+
     /// The curve as `[a1, a2, a3, a4, a6]` text.
     pub fn name(&self) -> String {
         let [a1, a2, a3, a4, a6] = &self.ainvs;
@@ -130,24 +144,14 @@ pub struct Selmer {
 /// The 2-Selmer group of `curve`.
 pub fn two_selmer(curve: &Curve) -> Result<Selmer> {
     let (i, j) = curve.quartic_invariants();
-    let torsion = resolvent_roots(&i, &j)
-        .expect("big integers do not overflow")
-        .len();
-    let two_torsion_rank = match torsion {
-        0 => 0,
-        1 => 1,
-        _ => 2,
-    };
-    let rows = classes_with_invariants(&i, &j, torsion > 0)?;
+    let two_torsion_rank = curve.two_torsion_rank();
+    let rows = classes_with_invariants(&i, &j, two_torsion_rank > 0)?;
     let irreducible_classes = rows
         .iter()
         .filter(|r| without_rational_root(r.pattern))
         .count();
     let els_classes = rows.iter().filter(|r| r.rational.is_some()).count();
-    let elements: Vec<ClassRow> = rows
-        .into_iter()
-        .filter(|r| r.rational.as_ref() == Some(&r.label))
-        .collect();
+    let elements: Vec<ClassRow> = rows.into_iter().filter(|r| r.first_over_q()).collect();
     let size = elements.len() + 1;
     if !size.is_power_of_two() {
         return Err(Error::Numerical(format!(
@@ -206,12 +210,9 @@ pub fn short_family(y: i128) -> Vec<(i64, i64)> {
             if short_height(a, b) >= y || 4 * a1.pow(3) + 27 * b1 * b1 == 0 || non_minimal(a, b) {
                 continue;
             }
-            // A rational root of the monic cubic is an integer dividing B (0 when B = 0).
-            let has_root = b == 0
-                || (1..=b1.abs())
-                    .filter(|d| b1 % d == 0)
-                    .any(|d| [d, -d].iter().any(|&x| x * x * x + a1 * x + b1 == 0));
-            if !has_root {
+            // A rational root of the monic cubic is an integer.
+            let roots = integer_roots(&[1, 0, a1, b1]).expect("small coefficients");
+            if roots.is_empty() {
                 out.push((a, b));
             }
         }

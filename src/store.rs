@@ -240,9 +240,7 @@ fn check_rows(params: &Params, rows: &[ClassRow]) -> Result<()> {
         if irreducible != r.galois.is_some() {
             return Err(bad("has a Galois group exactly when it is reducible"));
         }
-        let grouped =
-            crate::table::without_rational_root(r.pattern) && !r.local.is_empty() && r.els();
-        if r.rational.is_some() != grouped {
+        if r.rational.is_some() != r.grouped_over_q() {
             return Err(bad(
                 "has a class over Q exactly when it is not an els class without a rational root; \
                  order and label rows with table::order_and_label",
@@ -267,7 +265,7 @@ fn pair_rows(rows: &[ClassRow], include_reducible: bool) -> Vec<PairRow> {
                 p.classes += 1;
                 p.irreducible += irr;
                 p.els += i64::from(r.els());
-                p.rational_els += i64::from(r.rational.as_ref() == Some(&r.label));
+                p.rational_els += i64::from(r.first_over_q());
             }
             _ => out.push(PairRow {
                 i: r.i,
@@ -279,7 +277,7 @@ fn pair_rows(rows: &[ClassRow], include_reducible: bool) -> Vec<PairRow> {
                 irreducible: irr,
                 reducible: None,
                 els: i64::from(r.els()),
-                rational_els: i64::from(r.rational.as_ref() == Some(&r.label)),
+                rational_els: i64::from(r.first_over_q()),
                 primes: crate::primes::factor(&rug::Integer::from(r.disc))
                     .into_iter()
                     .map(|(p, e)| (p.to_i64().expect("factor of an i64"), i64::from(e)))

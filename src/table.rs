@@ -105,6 +105,17 @@ impl ClassRow {
             .join(",")
     }
 
+    /// Whether the class is grouped over Q (has a `rational` class): everywhere locally
+    /// soluble, with local data, and without a rational root.
+    pub fn grouped_over_q(&self) -> bool {
+        without_rational_root(self.pattern) && !self.local.is_empty() && self.els()
+    }
+
+    /// Whether the class is the first of its class over Q (the one the others name).
+    pub fn first_over_q(&self) -> bool {
+        self.rational.as_ref() == Some(&self.label)
+    }
+
     /// The sort key of the table.
     pub fn key(&self) -> (i64, i64, i64, [i64; 5]) {
         (self.h4, self.i, self.j, self.form)
@@ -274,10 +285,7 @@ pub fn without_rational_root(p: FactorPattern) -> bool {
 /// `rows`, label of the first row of its class). Rows without local data get none.
 pub fn rational_classes(rows: &[ClassRow]) -> Result<Vec<(usize, String)>> {
     let members: Vec<usize> = (0..rows.len())
-        .filter(|&k| {
-            let r = &rows[k];
-            without_rational_root(r.pattern) && !r.local.is_empty() && r.els()
-        })
+        .filter(|&k| rows[k].grouped_over_q())
         .collect();
     match members.as_slice() {
         [] => return Ok(Vec::new()),
