@@ -6,7 +6,7 @@
 
 use qorbits::by_invariants::classes_with_invariants;
 use qorbits::selmer::{selmer_stats, two_selmer, Curve};
-use qorbits::table::{enumerate_classes, rational_classes, Params};
+use qorbits::table::{enumerate_classes, pair_ranges, rational_classes, Params};
 use rug::Integer;
 use std::time::Instant;
 
@@ -61,19 +61,15 @@ fn main() {
         .rows;
         let build = t.elapsed().as_secs_f64();
         let t = Instant::now();
-        let (mut start, mut grouped, mut classes) = (0, 0, 0);
-        while start < rows.len() {
-            let mut end = start;
-            while end < rows.len() && (rows[end].i, rows[end].j) == (rows[start].i, rows[start].j) {
-                end += 1;
-            }
-            let g = rational_classes(&rows[start..end]).unwrap();
+        let (mut grouped, mut classes) = (0, 0);
+        for range in pair_ranges(&rows) {
+            let start = range.start;
+            let g = rational_classes(&rows[range]).unwrap();
             grouped += g.len();
             classes += g
                 .iter()
                 .filter(|(k, l)| rows[start + k].label == *l)
                 .count();
-            start = end;
         }
         let group = t.elapsed().as_secs_f64();
         println!(

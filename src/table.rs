@@ -234,15 +234,10 @@ fn run_task(
 /// `rational` column).
 pub fn order_and_label(rows: &mut [ClassRow]) -> Result<()> {
     rows.sort_by_key(ClassRow::key);
-    let mut pairs = Vec::new();
-    let mut start = 0;
-    while start < rows.len() {
-        let mut end = start;
-        while end < rows.len() && (rows[end].i, rows[end].j) == (rows[start].i, rows[start].j) {
-            end += 1;
-        }
+    let pairs = pair_ranges(rows);
+    for range in &pairs {
         let (mut ni, mut nr) = (0, 0);
-        for r in &mut rows[start..end] {
+        for r in &mut rows[range.clone()] {
             let tag = if r.pattern == FactorPattern::Irreducible {
                 ni += 1;
                 format!("i{ni}")
@@ -252,8 +247,6 @@ pub fn order_and_label(rows: &mut [ClassRow]) -> Result<()> {
             };
             r.label = format!("{}.{}.{}", r.i, r.j, tag);
         }
-        pairs.push(start..end);
-        start = end;
     }
     let groups: Vec<Result<Vec<(usize, String)>>> = pairs
         .into_par_iter()
@@ -269,6 +262,21 @@ pub fn order_and_label(rows: &mut [ClassRow]) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// The index ranges of the runs of rows with the same (I, J), in order.
+pub fn pair_ranges(rows: &[ClassRow]) -> Vec<std::ops::Range<usize>> {
+    let mut out = Vec::new();
+    let mut start = 0;
+    while start < rows.len() {
+        let mut end = start + 1;
+        while end < rows.len() && (rows[end].i, rows[end].j) == (rows[start].i, rows[start].j) {
+            end += 1;
+        }
+        out.push(start..end);
+        start = end;
+    }
+    out
 }
 
 /// Whether forms with this pattern have no rational root: irreducible, or two irreducible
