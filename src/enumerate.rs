@@ -40,10 +40,13 @@ pub struct HeightBound {
     pub j_max: i128,
 }
 
+/// The largest height bound the builder takes (beyond it the loops leave machine integers).
+pub const MAX_HEIGHT: i128 = 1_000_000_000_000_000_000;
+
 impl HeightBound {
-    /// The bound for `H < x`; refuses `x < 1` and `x > 10¹⁸` (beyond the machine-integer path).
+    /// The bound for `H < x`; refuses `x < 1` and `x >` [`MAX_HEIGHT`].
     pub fn new(x: i128) -> Result<HeightBound> {
-        if !(1..=1_000_000_000_000_000_000).contains(&x) {
+        if !(1..=MAX_HEIGHT).contains(&x) {
             return Err(Error::Input(format!(
                 "height bound {x} is outside 1 ..= 1e18, the range the builder handles"
             )));

@@ -268,6 +268,36 @@ fn refuse_existing(path: &Path, force: bool) -> Result<(), Error> {
     Ok(())
 }
 
+/// A new, empty, private directory under the system's temporary directory. It is created
+/// here (never reused), so nothing planted beforehand can redirect what is written in it.
+fn fresh_temp_dir() -> Result<PathBuf, Error> {
+    use std::os::unix::fs::DirBuilderExt;
+    let base = std::env::temp_dir();
+    let nanos = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.subsec_nanos());
+    for k in 0..100u32 {
+        let dir = base.join(format!(
+            "qorbits-rebuild-{}-{nanos:x}-{k}",
+            std::process::id()
+        ));
+        match std::fs::DirBuilder::new().mode(0o700).create(&dir) {
+            Ok(()) => return Ok(dir),
+            Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => continue,
+            Err(e) => {
+                return Err(Error::Io(format!(
+                    "cannot create a directory for the rebuild in {}: {e}",
+                    base.display()
+                )))
+            }
+        }
+    }
+    Err(Error::Io(format!(
+        "cannot create a fresh directory for the rebuild in {}",
+        base.display()
+    )))
+}
+
 fn build(
     params: &Params,
     out: &Path,
@@ -329,13 +359,12 @@ fn run(cli: Cli) -> Result<ExitCode, Error> {
                         height: man.parameters.height,
                         include_reducible: man.parameters.include_reducible,
                     };
-                    let dir = std::env::temp_dir()
-                        .join(format!("qorbits-rebuild-{}", std::process::id()));
-                    std::fs::create_dir_all(&dir)
-                        .map_err(|e| Error::Io(format!("{}: {e}", dir.display())))?;
-                    let out = dir.join(&man.file.name);
+                    // The rebuild goes into a directory made fresh for it, under a fixed
+                    // name: nothing from the manifest becomes part of a path.
+                    let dir = fresh_temp_dir()?;
+                    let out = dir.join("rebuild.sqlite");
                     let result =
-                        build(&params, &out, jobs, true, quiet).map(|()| verify(&out, &man));
+                        build(&params, &out, jobs, false, quiet).map(|()| verify(&out, &man));
                     let _ = std::fs::remove_dir_all(&dir);
                     result?
                 }

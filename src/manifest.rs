@@ -194,12 +194,71 @@ pub fn write_manifest(path: &Path, m: &Manifest, force: bool) -> Result<()> {
     write_atomic(path, manifest_json(m).as_bytes(), force)
 }
 
-/// Read a manifest, with a clear error for a missing or malformed file.
+/// Whether `name` is a plain file name: not empty, not `.` or `..`, no path separator, no
+/// control character, at most 255 bytes. A manifest is untrusted input, and its file name
+/// must never be able to name a place outside the directory it is used in.
+pub fn check_file_name(name: &str) -> std::result::Result<(), String> {
+    if name.is_empty() {
+        return Err("is empty".into());
+    }
+    if name == "." || name == ".." {
+        return Err(format!("'{name}' names a directory"));
+    }
+    if name.contains('/') || name.contains('\\') {
+        return Err("contains a path separator".into());
+    }
+    if name.chars().any(char::is_control) {
+        return Err("contains a control character".into());
+    }
+    if name.len() > 255 {
+        return Err("is longer than 255 bytes".into());
+    }
+    Ok(())
+}
+
+/// The checks [`read_manifest`] makes on a parsed manifest before anything uses it.
+fn check_manifest(m: &Manifest) -> std::result::Result<(), String> {
+    check_file_name(&m.file.name).map_err(|why| {
+        format!(
+            "its file name {:?} {why}; a manifest names a plain file, never a path",
+            m.file.name
+        )
+    })?;
+    let hex64 = |h: &str| h.len() == 64 && h.bytes().all(|b| b.is_ascii_hexdigit());
+    if !hex64(&m.file.sha256) || !hex64(&m.content_sha256) {
+        return Err("its hashes are not 64 hexadecimal digits".into());
+    }
+    if !(1..=crate::enumerate::MAX_HEIGHT).contains(&m.parameters.height) {
+        return Err(format!(
+            "its height {} is outside the heights a table can have (1 to {})",
+            m.parameters.height,
+            crate::enumerate::MAX_HEIGHT
+        ));
+    }
+    // SQLite's own limit on a database file is below 2^48 bytes.
+    if m.file.bytes == 0 || m.file.bytes > 1 << 48 {
+        return Err(format!(
+            "its file size {} bytes is impossible",
+            m.file.bytes
+        ));
+    }
+    Ok(())
+}
+
+/// Read a manifest, with a clear error for a missing, malformed or implausible file (see
+/// [`check_file_name`]: the file name must be a plain name, never a path).
 pub fn read_manifest(path: &Path) -> Result<Manifest> {
     let text = std::fs::read_to_string(path)
         .map_err(|e| Error::Io(format!("cannot read the manifest {}: {e}", path.display())))?;
-    serde_json::from_str(&text)
-        .map_err(|e| Error::Input(format!("{} is not a qorbits manifest: {e}", path.display())))
+    let m: Manifest = serde_json::from_str(&text)
+        .map_err(|e| Error::Input(format!("{} is not a qorbits manifest: {e}", path.display())))?;
+    check_manifest(&m).map_err(|why| {
+        Error::Input(format!(
+            "{} is not a valid qorbits manifest: {why}",
+            path.display()
+        ))
+    })?;
+    Ok(m)
 }
 
 /// One verification check.

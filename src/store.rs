@@ -89,6 +89,18 @@ impl TempFile {
                     "{shown} is a directory; give a file name inside it"
                 )));
             }
+            if m.file_type().is_symlink() {
+                return Err(Error::Io(format!(
+                    "{shown} is a symbolic link; qorbits replaces only regular files, so give \
+                     the path of the file itself or remove the link"
+                )));
+            }
+            if !m.is_file() {
+                return Err(Error::Io(format!(
+                    "{shown} is not a regular file (a device, socket or pipe); qorbits \
+                     replaces only regular files"
+                )));
+            }
             if !force {
                 return Err(Error::Io(format!(
                     "{shown} already exists; pass --force to overwrite it"

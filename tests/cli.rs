@@ -256,3 +256,79 @@ fn selmer_stats_states_the_family_and_bins() {
         .sum();
     assert_eq!(binned as usize, ranks.len());
 }
+
+/// A manifest is untrusted input: a file name that climbs out with `../`, an absolute path
+/// or odd bytes is refused before anything is built, and nothing is written outside the
+/// rebuild's own fresh directory. The target here is a harmless file of the test's own.
+#[test]
+fn verify_rebuild_never_writes_where_a_manifest_points() {
+    let d = tmpdir("escape");
+    let victim = d.join("victim.sqlite");
+    std::fs::write(&victim, b"harmless").unwrap();
+    let committed = std::fs::read_to_string(
+        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("manifests/qorbits-h1e4.manifest.json"),
+    )
+    .unwrap();
+    let mut v: serde_json::Value = serde_json::from_str(&committed).unwrap();
+    let climb = format!("{}{}", "../".repeat(12), victim.display());
+    for name in [
+        climb.as_str(),
+        victim.to_str().unwrap(),
+        "",
+        "..",
+        "sub/t.sqlite",
+        "a\nb.sqlite",
+    ] {
+        v["file"]["name"] = serde_json::Value::String(name.to_string());
+        let m = d.join("hostile.manifest.json");
+        std::fs::write(&m, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+        let o = qorbits(&["verify", "--rebuild", m.to_str().unwrap(), "--quiet"]);
+        let (_, err) = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{name:?}: {err}");
+        assert_eq!(err.trim().lines().count(), 1, "{name:?}: {err}");
+        assert!(err.contains("file name"), "{name:?}: {err}");
+        assert_eq!(std::fs::read(&victim).unwrap(), b"harmless", "{name:?}");
+        assert!(!d.join("victim.manifest.json").exists(), "{name:?}");
+    }
+    // With a plain name the rebuild runs in its own directory and leaves nothing behind in
+    // the working directory.
+    v["file"]["name"] = serde_json::Value::String("victim.sqlite".into());
+    let m = d.join("plain.manifest.json");
+    std::fs::write(&m, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_qorbits"))
+        .args(["verify", "--rebuild", m.to_str().unwrap(), "--quiet"])
+        .current_dir(&d)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{:?}", text(&o));
+    assert_eq!(std::fs::read(&victim).unwrap(), b"harmless");
+    assert!(!d.join("victim.manifest.json").exists());
+}
+
+/// Writers replace only regular files: an output that is a symbolic link is refused even
+/// with --force, and the file it points to is untouched.
+#[test]
+fn build_refuses_to_write_through_a_symlink() {
+    let d = tmpdir("symlink");
+    let target = d.join("target.txt");
+    std::fs::write(&target, b"keep me").unwrap();
+    let link = d.join("t.sqlite");
+    std::os::unix::fs::symlink(&target, &link).unwrap();
+    let o = qorbits(&[
+        "build",
+        "--height",
+        "1e3",
+        "--out",
+        link.to_str().unwrap(),
+        "--force",
+        "--quiet",
+    ]);
+    let (_, err) = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("symbolic link"), "{err}");
+    assert_eq!(std::fs::read(&target).unwrap(), b"keep me");
+    assert!(std::fs::symlink_metadata(&link)
+        .unwrap()
+        .file_type()
+        .is_symlink());
+}
