@@ -5,12 +5,14 @@
 //! Run: `cargo bench --bench build` (heights 1e6, 1e7, 1e8; override with
 //! `QORBITS_BENCH_HEIGHTS=1e5,1e6`).
 
-use qorbits::store::write_table;
-use qorbits::table::{enumerate_classes, enumerate_classes_with, ClassRow, Params};
+use qorbits::progress::Silent;
+use qorbits::table::pipeline::{enumerate_classes, enumerate_classes_with};
+use qorbits::table::row::{ClassRow, Params};
+use qorbits::table::writer::write_table;
 use rusqlite::{params, Connection};
 use std::time::Instant;
 
-fn plain_insert(rows: &[ClassRow], path: &std::path::Path) -> f64 {
+fn plain_insert<'a>(rows: impl Iterator<Item = &'a ClassRow>, path: &std::path::Path) -> f64 {
     let _ = std::fs::remove_file(path);
     let t = Instant::now();
     let mut conn = Connection::open(path).unwrap();
@@ -27,7 +29,7 @@ fn plain_insert(rows: &[ClassRow], path: &std::path::Path) -> f64 {
                 "INSERT INTO t VALUES (?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,?12,?13,?14,?15,?16,?17)",
             )
             .unwrap();
-        for (n, r) in rows.iter().enumerate() {
+        for (n, r) in rows.enumerate() {
             st.execute(params![
                 n as i64 + 1,
                 r.label,
@@ -92,31 +94,31 @@ fn main() {
             include_reducible: false,
         };
         let t = Instant::now();
-        let out = enumerate_classes(&params, None).unwrap();
+        let out = enumerate_classes(&params, &Silent).unwrap();
         let t_enum = t.elapsed().as_secs_f64();
         let path = dir.join(format!("h{x}.sqlite"));
         let t = Instant::now();
-        write_table(&path, &params, &out.rows, true).unwrap();
+        write_table(&path, &out, true).unwrap();
         let t_write = t.elapsed().as_secs_f64();
-        let t_plain = plain_insert(&out.rows, &dir.join("plain.sqlite"));
+        let t_plain = plain_insert(out.rows(), &dir.join("plain.sqlite"));
         // The same build without local data, in the same run.
         let t = Instant::now();
-        let bare = enumerate_classes_with(&params, None, false).unwrap();
-        write_table(&path, &params, &bare.rows, true).unwrap();
+        let bare = enumerate_classes_with(&params, &Silent, false).unwrap();
+        write_table(&path, &bare, true).unwrap();
         let t_bare = t.elapsed().as_secs_f64();
         let total = t_enum + t_write;
         local_figures.push((
             x,
             total,
             t_bare,
-            out.rows.len(),
-            out.rows.iter().map(|r| r.local.len()).sum::<usize>(),
+            out.classes(),
+            out.rows().map(|r| r.local.len()).sum::<usize>(),
         ));
         println!(
             "{x:>10} {:>10} {:>12.0} {:>10.2} {t_enum:>9.2} {t_write:>9.2} {t_plain:>9.2} {:>9.2}",
-            out.rows.len(),
-            out.rows.len() as f64 / total,
-            out.candidates as f64 / out.rows.len() as f64,
+            out.classes(),
+            out.classes() as f64 / total,
+            out.candidates as f64 / out.classes() as f64,
             total / t_plain
         );
         pts.push(((x as f64).ln(), total.ln()));

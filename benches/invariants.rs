@@ -2,7 +2,7 @@
 //! all classes), and the fitted exponent of the time against H.
 //! Run: `cargo bench --bench invariants` (`QORBITS_BENCH_MAX=12` stops at 10¹²).
 
-use qorbits::by_invariants::classes_with_invariants;
+use qorbits::table::pipeline::classes_with_invariants;
 use rug::Integer;
 use std::time::Instant;
 
@@ -27,7 +27,7 @@ fn main() {
             let rows =
                 classes_with_invariants(&Integer::from(i), &Integer::from(j), reducible).unwrap();
             let s = t.elapsed().as_secs_f64();
-            println!("H ≈ 1e{k:<3} (I, J) = ({i}, {j})  reducible {reducible:<5}  {:>3} classes  {s:>8.3} s", rows.len());
+            println!("H ≈ 1e{k:<3} (I, J) = ({i}, {j})  reducible {reducible:<5}  {:>3} classes  {s:>8.3} s", rows.classes.len());
             if !reducible {
                 pts.push(((i as f64).powi(3).ln(), s.ln()));
             }

@@ -2,7 +2,7 @@
 //! random GL2(Z) matrices), for forms whose covariant lies on the boundary of F, and for
 //! the builder's fast test. Run: `cargo bench --bench kernel`.
 
-use qorbits::canonical::{canonical, is_canonical};
+use qorbits::form::canonical::{canonical, is_canonical};
 use qorbits::form::{Form, Gl2};
 use rug::Integer;
 use std::time::Instant;

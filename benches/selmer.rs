@@ -4,9 +4,12 @@
 //! the rest of its build, measured in the same run.
 //! Run: `cargo bench --bench selmer` (`QORBITS_BENCH_STATS=1e4` stops the averages at 10⁴).
 
-use qorbits::by_invariants::classes_with_invariants;
+use qorbits::progress::Silent;
 use qorbits::selmer::{selmer_stats, two_selmer, Curve};
-use qorbits::table::{enumerate_classes, pair_ranges, rational_classes, Params};
+use qorbits::table::group::group_rows;
+use qorbits::table::pipeline::classes_with_invariants;
+use qorbits::table::pipeline::enumerate_classes;
+use qorbits::table::row::{ClassRow, Params};
 use rug::Integer;
 use std::time::Instant;
 
@@ -45,7 +48,7 @@ fn main() {
             "{:>16} {:>6} {:>8} {total:>10.3} {search:>10.3}",
             format!("({a}, {b})"),
             s.rank,
-            rows.len()
+            rows.classes.len()
         );
     }
     for x in [1_000_000i128, 10_000_000] {
@@ -55,26 +58,24 @@ fn main() {
                 height: x,
                 include_reducible: false,
             },
-            None,
+            &Silent,
         )
         .unwrap()
-        .rows;
+        .rows()
+        .cloned()
+        .collect::<Vec<ClassRow>>();
         let build = t.elapsed().as_secs_f64();
         let t = Instant::now();
-        let (mut grouped, mut classes) = (0, 0);
-        for range in pair_ranges(&rows) {
-            let start = range.start;
-            let g = rational_classes(&rows[range]).unwrap();
-            grouped += g.len();
-            classes += g
-                .iter()
-                .filter(|(k, l)| rows[start + k].label == *l)
-                .count();
-        }
+        let pairs = group_rows(rows.clone()).unwrap();
+        let grouped: usize = pairs
+            .iter()
+            .map(|p| p.over_q.iter().map(Vec::len).sum::<usize>())
+            .sum();
+        let classes: usize = pairs.iter().map(|p| p.over_q.len()).sum();
         let group = t.elapsed().as_secs_f64();
         println!(
             "table X = {x:.0e}: {} classes, {grouped} els irreducible, {classes} classes over Q; \
-             grouping {group:.3} s on one thread = {:.1}% of the enumeration ({build:.2} s, which includes it)",
+             grouping and labelling {group:.3} s = {:.1}% of the enumeration ({build:.2} s, which includes it)",
             rows.len(),
             100.0 * group / build
         );
@@ -84,7 +85,7 @@ fn main() {
             continue;
         }
         let t = Instant::now();
-        let st = selmer_stats(y as i128, None).unwrap();
+        let st = selmer_stats(y as i128, &Silent).unwrap();
         let secs = t.elapsed().as_secs_f64();
         println!(
             "selmer-stats Y = {y:.0e}: {} curves, average #Sel2 = {:.4}, by rank {:?}, {secs:.2} s ({:.1} ms per curve)",

@@ -15,6 +15,9 @@ pub enum Error {
     Input(String),
     /// A file could not be read or written.
     Io(String),
+    /// An output file exists and replacing it was not allowed (the command line's
+    /// `--force` allows it).
+    Exists(std::path::PathBuf),
     /// A database is missing, corrupt or not a qorbits table.
     Database(String),
     /// Internal: the checked `i128` fast path overflowed. The public functions retry with
@@ -37,6 +40,11 @@ impl fmt::Display for Error {
             Error::Numerical(m) => write!(f, "numerical failure ({m}); please report this form"),
             Error::Input(m) => write!(f, "{m}"),
             Error::Io(m) => write!(f, "{m}"),
+            Error::Exists(p) => write!(
+                f,
+                "{} already exists; choose another output or allow replacing it",
+                p.display()
+            ),
             Error::Database(m) => write!(f, "{m}"),
             Error::Overflow => write!(f, "internal: integer overflow on the fast path"),
         }

@@ -3,9 +3,9 @@
 
 mod common;
 
-use qorbits::canonical::canonical_in;
+use qorbits::form::canonical::canonical_in;
+use qorbits::form::galois::{factor_pattern, FactorPattern};
 use qorbits::form::Form;
-use qorbits::galois::{factor_pattern, FactorPattern};
 use rayon::prelude::*;
 use std::collections::{BTreeMap, BTreeSet};
 
@@ -74,7 +74,9 @@ fn classes_below_height_1e4_stop_growing_with_the_box() {
 
 #[test]
 fn builder_rows_equal_the_brute_force_box() {
-    use qorbits::table::{enumerate_classes, Params};
+    use qorbits::progress::Silent;
+    use qorbits::table::pipeline::enumerate_classes;
+    use qorbits::table::row::Params;
     let boxed = classes_in_box(10, 60);
     for include_reducible in [true, false] {
         let out = enumerate_classes(
@@ -82,11 +84,11 @@ fn builder_rows_equal_the_brute_force_box() {
                 height: X,
                 include_reducible,
             },
-            None,
+            &Silent,
         )
         .unwrap();
-        let built: BTreeSet<[i128; 5]> = out.rows.iter().map(|r| r.form.map(i128::from)).collect();
-        assert_eq!(built.len(), out.rows.len(), "a class was emitted twice");
+        let built: BTreeSet<[i128; 5]> = out.rows().map(|r| r.form.map(i128::from)).collect();
+        assert_eq!(built.len(), out.classes(), "a class was emitted twice");
         let want: BTreeSet<[i128; 5]> = boxed
             .iter()
             .filter(|c| {
@@ -103,9 +105,9 @@ fn builder_rows_equal_the_brute_force_box() {
         );
         eprintln!(
             "builder at H < 1e4 (reducible: {include_reducible}): {} classes, {} candidates ({:.2} per class)",
-            out.rows.len(),
+            out.classes(),
             out.candidates,
-            out.candidates as f64 / out.rows.len() as f64
+            out.candidates as f64 / out.classes() as f64
         );
     }
 }

@@ -6,10 +6,13 @@
 mod common;
 
 use common::{random_gl2, Rng};
-use qorbits::by_invariants::{classes_with_invariants, refusal};
-use qorbits::canonical::canonical;
+use qorbits::enumerate::by_invariants::refusal;
+use qorbits::form::canonical::canonical;
 use qorbits::form::{eligible, invariants_from_ij, Form};
-use qorbits::table::{enumerate_classes, ClassRow, Params};
+use qorbits::progress::Silent;
+use qorbits::table::pipeline::classes_with_invariants;
+use qorbits::table::pipeline::enumerate_classes;
+use qorbits::table::row::{ClassRow, Params};
 use rug::Integer;
 use std::collections::BTreeMap;
 
@@ -21,10 +24,12 @@ fn search_by_invariants_reproduces_the_table() {
             height,
             include_reducible: true,
         },
-        None,
+        &Silent,
     )
     .unwrap()
-    .rows;
+    .rows()
+    .cloned()
+    .collect::<Vec<ClassRow>>();
     let mut by_pair: BTreeMap<(i64, i64), Vec<ClassRow>> = BTreeMap::new();
     for r in rows {
         by_pair.entry((r.i, r.j)).or_default().push(r);
@@ -40,11 +45,11 @@ fn search_by_invariants_reproduces_the_table() {
             .unwrap();
         let want: Vec<ClassRow> = want
             .iter()
-            .filter(|r| include_reducible || r.galois.is_some())
+            .filter(|r| include_reducible || r.irreducible())
             .cloned()
             .collect();
         assert_eq!(
-            got, want,
+            got.classes, want,
             "(I, J) = ({i}, {j}), reducible included: {include_reducible}"
         );
         checked += 1;
@@ -78,7 +83,10 @@ fn search_by_invariants_reproduces_the_table() {
             "eligible ({i}, {j}) has no class at all"
         );
         assert!(
-            classes_with_invariants(&bi, &bj, false).unwrap().is_empty(),
+            classes_with_invariants(&bi, &bj, false)
+                .unwrap()
+                .classes
+                .is_empty(),
             "({i}, {j})"
         );
         absent += 1;
@@ -100,7 +108,11 @@ fn classes_at_height_1e12_are_recognised_from_transforms() {
         }
         let rows = classes_with_invariants(&inv.i, &inv.j, true).unwrap();
         let own = canonical(&f).unwrap().form;
-        let forms: Vec<Form<Integer>> = rows.iter().map(|r| Form::from_i64(r.form)).collect();
+        let forms: Vec<Form<Integer>> = rows
+            .classes
+            .iter()
+            .map(|r| Form::from_i64(r.form))
+            .collect();
         assert!(
             forms.contains(&own),
             "the class of {f} is missing from {forms:?}"

@@ -7,7 +7,7 @@
 mod common;
 
 use common::*;
-use qorbits::canonical::{canonical, is_canonical, Canonical};
+use qorbits::form::canonical::{canonical, is_canonical, Canonical};
 use qorbits::form::{Form, Gl2};
 use rug::Integer;
 

@@ -13,8 +13,8 @@
 mod common;
 
 use common::Rng;
+use qorbits::form::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
 use qorbits::form::{Form, Gl2};
-use qorbits::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
 use rug::ops::Pow;
 use rug::Integer;
 use std::collections::BTreeMap;

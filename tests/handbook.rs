@@ -3,8 +3,8 @@
 mod common;
 
 use common::{gp_lines, Rng};
+use qorbits::form::galois::{galois_group, GaloisGroup};
 use qorbits::form::Form;
-use qorbits::galois::{galois_group, GaloisGroup};
 use rug::Integer;
 
 #[test]

@@ -12,11 +12,14 @@
 mod common;
 
 use common::{random_form, random_gl2, Rng};
+use qorbits::arith::primes::factor;
+use qorbits::form::galois::FactorPattern;
+use qorbits::form::local::local_data;
+use qorbits::form::rational::Algebra;
 use qorbits::form::{Form, Gl2};
-use qorbits::galois::FactorPattern;
-use qorbits::primes::factor;
-use qorbits::rational::Algebra;
-use qorbits::table::{enumerate_classes, local_rows, ClassRow, Params};
+use qorbits::progress::Silent;
+use qorbits::table::pipeline::enumerate_classes;
+use qorbits::table::row::{ClassRow, Params};
 use rug::Integer;
 
 /// The pairs of a small table with at least two els irreducible classes.
@@ -26,10 +29,12 @@ fn pairs_with_several_els_classes() -> Vec<Vec<ClassRow>> {
             height: 200_000,
             include_reducible: false,
         },
-        None,
+        &Silent,
     )
     .unwrap()
-    .rows;
+    .rows()
+    .cloned()
+    .collect::<Vec<ClassRow>>();
     let mut out: Vec<Vec<ClassRow>> = Vec::new();
     for r in rows {
         match out.last_mut() {
@@ -141,7 +146,9 @@ fn forms_with_a_rational_point_from_pari_are_els() {
     let mut forms = Vec::new();
     while forms.len() < 600 {
         let f = random_form(&mut rng, 6);
-        if f.c[0] != 0 && qorbits::galois::factor_pattern(&f) == Some(FactorPattern::Irreducible) {
+        if f.c[0] != 0
+            && qorbits::form::galois::factor_pattern(&f) == Some(FactorPattern::Irreducible)
+        {
             forms.push(f);
         }
     }
@@ -162,7 +169,7 @@ fn forms_with_a_rational_point_from_pari_are_els() {
         with_points += 1;
         let inv = f.invariants().unwrap();
         let s = f.signature(&inv).unwrap();
-        let local = local_rows(f, &factor(&inv.disc), s);
+        let local = local_data(f, &factor(&inv.disc), s);
         assert!(
             local.iter().all(|l| l.soluble),
             "{f} has a rational point: {local:?}"

@@ -18,7 +18,7 @@
 mod common;
 
 use common::Rng;
-use qorbits::rational::Algebra;
+use qorbits::form::rational::Algebra;
 use qorbits::selmer::{two_selmer, Curve};
 use rug::Integer;
 

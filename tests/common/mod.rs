@@ -2,6 +2,8 @@
 //! matrices of GL2(Z).
 #![allow(dead_code)]
 
+pub mod fixture;
+
 use qorbits::form::{Form, Gl2};
 use rug::Integer;
 

@@ -1,0 +1,436 @@
+//! Julia's covariant point z(f) of a binary quartic form (DESIGN §3).
+//!
+//! For the roots α_j of f in P¹(C), z(f) is the unique point of the upper half plane
+//! minimising `G(z) = Σ_j log(w_j(z)/Im z)` with `w_j = (x − Re α_j)² + y² + (Im α_j)²`
+//! for a finite root and `w_j = 1` for the root at infinity (G. Julia 1917; M. Stoll and
+//! J. Cremona, J. reine angew. Math. 565 (2003)).
+//!
+//! Numerics, generic over [`Real`] (f64 or MPFR):
+//! * roots by the Aberth–Ehrlich simultaneous iteration, polished to full working precision;
+//! * G is minimised by a descent that respects the hyperbolic metric (natural gradient
+//!   `y²∇G`, steps of hyperbolic length ≤ ½, Armijo backtracking) switching to plain Newton
+//!   on ∇G near the minimum; convergence is decided on the Newton step, not on the value of G;
+//! * `w_j` is evaluated as a sum of squares, never in expanded form.
+//!
+//! The result carries an a-posteriori error estimate (twice the last Newton step plus the
+//! propagated root error); [`point_f64`] declines (returns `None`) when the f64 computation
+//! is not trustworthy (huge coefficients, clustered roots, no convergence), and the caller
+//! then uses [`point_mp`].
+//!
+//! ```
+//! use qorbits::form::covariant::point_f64;
+//! // x⁴ + y⁴: its roots are symmetric about i, so z = i.
+//! let z = point_f64(&[1.0, 0.0, 0.0, 0.0, 1.0]).unwrap();
+//! assert!(z.x.abs() < 1e-12 && (z.y - 1.0).abs() < 1e-12);
+//! ```
+
+use crate::arith::real::{Cx, Mp, Real};
+use rug::Integer;
+
+/// A point `x + i·y` of the upper half plane with an error estimate (Euclidean).
+#[derive(Clone, Debug)]
+pub struct Point<R> {
+    /// Real part.
+    pub x: R,
+    /// Imaginary part (positive).
+    pub y: R,
+    /// Estimated absolute error of `x` and `y`.
+    pub err: f64,
+}
+
+/// Horner evaluation of `p` and `p'` at `z` (descending coefficients).
+fn horner<R: Real>(p: &[R], z: &Cx<R>) -> (Cx<R>, Cx<R>) {
+    let zero = p[0].lit(0.0);
+    let mut v = Cx::new(zero.clone(), zero.clone());
+    let mut dv = Cx::new(zero.clone(), zero);
+    for c in p {
+        dv = dv.mul(z).add(&v);
+        v = v.mul(z);
+        v.re = v.re.clone() + c.clone();
+    }
+    (v, dv)
+}
+
+/// Initial guesses for Aberth: a circle around the centroid of the roots.
+fn initial_guesses(p: &[f64]) -> Vec<Cx<f64>> {
+    let n = p.len() - 1;
+    let center = -p[1] / (n as f64 * p[0]);
+    let mut radius: f64 = 0.0;
+    for (k, c) in p.iter().enumerate().skip(1) {
+        radius = radius.max((c / p[0]).abs().powf(1.0 / k as f64));
+    }
+    let radius = radius.max(1e-3) * 1.5;
+    (0..n)
+        .map(|k| {
+            let t = 0.7 + std::f64::consts::TAU * k as f64 / n as f64;
+            Cx::new(center + radius * t.cos(), radius * t.sin())
+        })
+        .collect()
+}
+
+/// Aberth–Ehrlich iteration from `z`. Runs until every correction is at the working
+/// precision, or every residual `|p(z)|` is at the level of its own rounding error
+/// (`ε·Σ|cᵢ||z|ⁱ`: clustered roots cannot be located better at this precision). Returns
+/// for each root the classical a-posteriori radius `n·|p(z)/p'(z)|` (a disc of that radius
+/// about z contains a root), or `None` if the iteration diverged or never settled.
+fn aberth<R: Real>(p: &[R], z: &mut [Cx<R>], max_iter: usize) -> Option<Vec<f64>> {
+    let n = z.len();
+    let eps = p[0].epsilon();
+    let one = p[0].lit(1.0);
+    let zero = one.lit(0.0);
+    let abs_coeffs: Vec<R> = p.iter().map(|c| c.abs()).collect();
+    for _ in 0..max_iter {
+        let mut worst = zero.clone();
+        let mut at_noise = true;
+        for k in 0..n {
+            let (v, dv) = horner(p, &z[k]);
+            if v.re == zero && v.im == zero {
+                continue; // an exact root
+            }
+            let r = z[k].abs();
+            let mut noise = zero.clone();
+            for c in &abs_coeffs {
+                noise = noise * r.clone() + c.clone();
+            }
+            if v.abs() > noise * eps.clone() * one.lit(64.0) {
+                at_noise = false;
+            }
+            let w = v.div(&dv);
+            let mut s = Cx::new(zero.clone(), zero.clone());
+            for (j, zj) in z.iter().enumerate() {
+                if j != k {
+                    s = s.add(&Cx::new(one.clone(), zero.clone()).div(&z[k].sub(zj)));
+                }
+            }
+            let denom = Cx::new(one.clone(), zero.clone()).sub(&w.mul(&s));
+            let corr = w.div(&denom);
+            let scale = if r > one { r } else { one.clone() };
+            z[k] = z[k].sub(&corr);
+            let rel = corr.abs() / scale;
+            if rel > worst {
+                worst = rel;
+            }
+        }
+        if !worst.to_f64().is_finite() {
+            return None;
+        }
+        if worst < eps.clone() * one.lit(16.0) || at_noise {
+            let radii = z
+                .iter()
+                .map(|zk| {
+                    let (v, dv) = horner(p, zk);
+                    let r = n as f64 * (v.abs() / dv.abs()).to_f64();
+                    if r.is_finite() {
+                        r
+                    } else {
+                        f64::INFINITY
+                    }
+                })
+                .collect();
+            return Some(radii);
+        }
+    }
+    None
+}
+
+/// The finite roots of `f(x, 1)` and whether there is a root at infinity.
+struct Roots<R> {
+    finite: Vec<Cx<R>>,
+    at_infinity: bool,
+    /// Estimated absolute error of each finite root.
+    err: Vec<f64>,
+}
+
+fn roots<R: Real>(c: &[R; 5], guess: Option<Vec<Cx<f64>>>) -> Option<Roots<R>> {
+    let zero = c[0].lit(0.0);
+    let at_infinity = c[0] == zero;
+    let p: Vec<R> = if at_infinity {
+        c[1..].to_vec()
+    } else {
+        c.to_vec()
+    };
+    if p[0] == zero {
+        return None; // Disc = 0: at least a double root at infinity.
+    }
+    let pf: Vec<f64> = p.iter().map(|x| x.to_f64()).collect();
+    let guess = guess
+        .filter(|g| g.len() == p.len() - 1)
+        .unwrap_or_else(|| initial_guesses(&pf));
+    let mut z: Vec<Cx<R>> = guess
+        .into_iter()
+        .map(|g| Cx::new(zero.lit(g.re), zero.lit(g.im)))
+        .collect();
+    let radii = aberth(&p, &mut z, 400)?;
+    let eps = zero.epsilon().to_f64();
+    let err = z
+        .iter()
+        .zip(&radii)
+        .map(|(r, l)| l + 64.0 * eps * r.abs().to_f64().max(1.0))
+        .collect();
+    Some(Roots {
+        finite: z,
+        at_infinity,
+        err,
+    })
+}
+
+/// Value, gradient and Hessian of G at (x, y).
+struct Local<R> {
+    g: R,
+    gx: R,
+    gy: R,
+    hxx: R,
+    hxy: R,
+    hyy: R,
+}
+
+fn local<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> Local<R> {
+    let zero = x.lit(0.0);
+    let (two, four) = (x.lit(2.0), x.lit(4.0));
+    let mut l = Local {
+        g: zero.clone(),
+        gx: zero.clone(),
+        gy: zero.clone(),
+        hxx: zero.clone(),
+        hxy: zero.clone(),
+        hyy: zero,
+    };
+    for r in roots {
+        let dx = x.clone() - r.re.clone();
+        let w = dx.clone() * dx.clone() + y.clone() * y.clone() + r.im.clone() * r.im.clone();
+        let w2 = w.clone() * w.clone();
+        l.g = l.g + w.ln();
+        l.gx = l.gx + two.clone() * dx.clone() / w.clone();
+        l.gy = l.gy + two.clone() * y.clone() / w.clone();
+        l.hxx =
+            l.hxx + two.clone() / w.clone() - four.clone() * dx.clone() * dx.clone() / w2.clone();
+        l.hxy = l.hxy - four.clone() * dx * y.clone() / w2.clone();
+        l.hyy = l.hyy + two.clone() / w - four.clone() * y.clone() * y.clone() / w2;
+    }
+    // −4 log y: all four roots, the one at infinity included.
+    l.g = l.g - four.clone() * y.ln();
+    l.gy = l.gy - four.clone() / y.clone();
+    l.hyy = l.hyy + four / (y.clone() * y.clone());
+    l
+}
+
+fn value<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> R {
+    let mut g = x.lit(0.0);
+    for r in roots {
+        let dx = x.clone() - r.re.clone();
+        g = g + (dx.clone() * dx + y.clone() * y.clone() + r.im.clone() * r.im.clone()).ln();
+    }
+    g - x.lit(4.0) * y.ln()
+}
+
+/// Minimise G from `start`; `None` if the descent fails.
+fn minimise<R: Real>(roots: &[Cx<R>], start: (R, R)) -> Option<(R, R, f64)> {
+    let (mut x, mut y) = start;
+    let eps = x.epsilon();
+    let mut last_step = f64::INFINITY;
+    let mut newton_phase = false;
+    for _ in 0..400 {
+        let l = local(roots, &x, &y);
+        let det = l.hxx.clone() * l.hyy.clone() - l.hxy.clone() * l.hxy.clone();
+        let zero = x.lit(0.0);
+        let pd = l.hxx > zero && det > zero;
+        let (mut dx, mut dy) = if pd {
+            (
+                -(l.hyy.clone() * l.gx.clone() - l.hxy.clone() * l.gy.clone()) / det.clone(),
+                -(l.hxx.clone() * l.gy.clone() - l.hxy.clone() * l.gx.clone()) / det,
+            )
+        } else {
+            let y2 = y.clone() * y.clone();
+            (-(y2.clone() * l.gx.clone()), -(y2 * l.gy.clone()))
+        };
+        let yf = y.to_f64();
+        let len = (dx.clone() * dx.clone() + dy.clone() * dy.clone())
+            .sqrt()
+            .to_f64()
+            / yf;
+        let grad = yf
+            * (l.gx.clone() * l.gx.clone() + l.gy.clone() * l.gy.clone())
+                .sqrt()
+                .to_f64();
+        if pd && (newton_phase || (grad < 1e-3 && len < 1e-2)) {
+            // Plain Newton on ∇G near the minimum.
+            newton_phase = true;
+            let ny = y.clone() + dy.clone();
+            if ny <= zero {
+                return None;
+            }
+            let step_r = (dx.clone() * dx.clone() + dy.clone() * dy.clone()).sqrt();
+            x = x + dx;
+            y = ny;
+            let tiny_r = eps.clone() * x.lit(64.0) * (x.lit(1.0) + x.abs() + y.clone());
+            let (step, tiny) = (step_r.to_f64(), tiny_r.to_f64());
+            if step_r <= tiny_r {
+                // Quadratic convergence: the error after this step is far below the step.
+                return Some((x, y, 2.0 * step + tiny));
+            }
+            if step < 1e-8 * (1.0 + yf) && step >= last_step * 0.5 {
+                // Rounding noise: successive steps no longer shrink.
+                return Some((x, y, 4.0 * step + tiny));
+            }
+            last_step = step;
+            continue;
+        }
+        if len > 0.5 {
+            let k = x.lit(0.5 / len);
+            dx = dx * k.clone();
+            dy = dy * k;
+        }
+        let slope = (l.gx.clone() * dx.clone() + l.gy.clone() * dy.clone()).to_f64();
+        let mut t = 1.0;
+        let mut moved = false;
+        for _ in 0..80 {
+            let tt = x.lit(t);
+            let (nx, ny) = (
+                x.clone() + tt.clone() * dx.clone(),
+                y.clone() + tt * dy.clone(),
+            );
+            if ny.to_f64() > 0.0 {
+                let gv = value(roots, &nx, &ny);
+                if (gv.clone() - l.g.clone()).to_f64() <= 1e-4 * t * slope {
+                    x = nx;
+                    y = ny;
+                    moved = true;
+                    break;
+                }
+            }
+            t *= 0.5;
+        }
+        if !moved {
+            // No descent possible at this precision: we are at the minimum to rounding.
+            newton_phase = pd;
+            if !pd {
+                return None;
+            }
+        }
+    }
+    None
+}
+
+fn start_point<R: Real>(roots: &Roots<R>) -> (R, R) {
+    let n = roots.finite.len() as f64;
+    let mx: f64 = roots.finite.iter().map(|r| r.re.to_f64()).sum::<f64>() / n;
+    let spread: f64 = roots
+        .finite
+        .iter()
+        .map(|r| {
+            let d = r.re.to_f64() - mx;
+            d * d + r.im.to_f64() * r.im.to_f64()
+        })
+        .sum::<f64>()
+        / n;
+    let y0 = spread.sqrt().max(1e-300) * if roots.at_infinity { 2.0 } else { 1.0 };
+    let z = &roots.finite[0].re;
+    (z.lit(mx), z.lit(y0))
+}
+
+fn root_error_bound(roots: &Roots<impl Real>) -> f64 {
+    roots.err.iter().cloned().fold(0.0, f64::max)
+}
+
+/// Julia's point of the form with coefficients `c` (as f64), if the f64 computation can be
+/// trusted (coefficients exactly representable, roots converged and not clustered).
+pub fn point_f64(c: &[f64; 5]) -> Option<Point<f64>> {
+    if c.iter().any(|x| !x.is_finite() || x.abs() >= 2f64.powi(52)) {
+        return None;
+    }
+    let r = roots(c, None)?;
+    let scale = r.finite.iter().map(|z| z.abs()).fold(1.0, f64::max);
+    for (i, a) in r.finite.iter().enumerate() {
+        for b in &r.finite[i + 1..] {
+            if a.sub(b).abs() < 1e-5 * scale {
+                return None;
+            }
+        }
+    }
+    let (x, y, err) = minimise(&r.finite, start_point(&r))?;
+    let err = err + 4.0 * root_error_bound(&r) * (1.0 + scale);
+    (err < 1e-7).then_some(Point { x, y, err })
+}
+
+/// Julia's point of the integral form `c` at `prec` bits of MPFR precision; `None` if the
+/// iteration fails at this precision.
+pub fn point_mp(c: &[Integer; 5], prec: u32) -> Option<Point<Mp>> {
+    let zero = Mp::new(prec, 0.0);
+    let cr: [Mp; 5] = std::array::from_fn(|k| zero.int_lit(&c[k]));
+    // Start the roots from an f64 solve when it converges (fast), else from a circle.
+    let cf: Vec<f64> = c.iter().map(|v| v.to_f64()).collect();
+    let guess = roots::<f64>(&[cf[0], cf[1], cf[2], cf[3], cf[4]], None)
+        .filter(|r| {
+            r.finite
+                .iter()
+                .all(|z| z.re.is_finite() && z.im.is_finite())
+        })
+        .map(|r| r.finite);
+    // Guesses from f64 can stall inside a tight cluster; then restart from a circle.
+    let good = |r: &Roots<Mp>| root_error_bound(r) < zero.epsilon().sqrt().to_f64();
+    let r = match roots(&cr, guess) {
+        Some(r) if good(&r) => r,
+        first => match (first, roots(&cr, None)) {
+            (Some(a), Some(b)) => {
+                if root_error_bound(&a) <= root_error_bound(&b) {
+                    a
+                } else {
+                    b
+                }
+            }
+            (a, b) => a.or(b)?,
+        },
+    };
+    let start = start_point(&r);
+    let scale = r
+        .finite
+        .iter()
+        .map(|z| z.abs().to_f64())
+        .fold(1.0, f64::max);
+    let (x, y, err) = minimise(&r.finite, start)?;
+    Some(Point {
+        x,
+        y,
+        err: err + 4.0 * root_error_bound(&r) * (1.0 + scale),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn covariance_under_translation_and_inversion() {
+        // f(x, y) = x⁴ − 2x³y − 3x²y² − xy³ + 5y⁴ and its translate f(x + 2y, y):
+        // z(γ·f) = z(f) − 2 for γ = [[1, 0], [2, 1]] (DESIGN §3).
+        let f = [1.0, -2.0, -3.0, -1.0, 5.0];
+        let g = [1.0, 6.0, 9.0, -5.0, -9.0]; // f(x + 2y, y)
+        let (zf, zg) = (point_f64(&f).unwrap(), point_f64(&g).unwrap());
+        assert!((zf.x - 2.0 - zg.x).abs() < 1e-10 && (zf.y - zg.y).abs() < 1e-10);
+        // f(y, −x) reverses the coefficients with signs: z ↦ −1/z.
+        let h = [5.0, 1.0, -3.0, 2.0, 1.0];
+        let zh = point_f64(&h).unwrap();
+        let n = zf.x * zf.x + zf.y * zf.y;
+        assert!((zh.x + zf.x / n).abs() < 1e-10 && (zh.y - zf.y / n).abs() < 1e-10);
+    }
+
+    #[test]
+    fn mpfr_agrees_with_f64() {
+        let c = [3i64, -1, 4, 1, -5];
+        let zf = point_f64(&c.map(|v| v as f64)).unwrap();
+        let zm = point_mp(&c.map(Integer::from), 256).unwrap();
+        assert!((zm.x.to_f64() - zf.x).abs() < 1e-12 && (zm.y.to_f64() - zf.y).abs() < 1e-12);
+        assert!(zm.err < 1e-60, "{}", zm.err);
+    }
+
+    #[test]
+    fn root_at_infinity() {
+        // y(x³ − 2y³): finite roots of x³ − 2 and a root at infinity.
+        // The three finite roots are balanced about Re z = 0 (derived by hand: the x-gradient
+        // of G vanishes there for every y).
+        let z = point_f64(&[0.0, 1.0, 0.0, 0.0, -2.0]).unwrap();
+        assert!(z.x.abs() < 1e-12 && z.y > 1.0 && z.err < 1e-12);
+        let m = point_mp(&[0, 1, 0, 0, -2].map(Integer::from), 200).unwrap();
+        assert!((m.y.to_f64() - z.y).abs() < 1e-13 && m.err < 1e-50, "{m:?}");
+    }
+}

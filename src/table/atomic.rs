@@ -1,0 +1,184 @@
+//! Atomic files: every file qorbits writes is built under a temporary name beside its
+//! target, flushed to disk and renamed, so a target never holds a partial file; targets that
+//! are not regular files (directories, symbolic links, devices) are never replaced.
+//!
+//! ```
+//! use qorbits::table::atomic::write_atomic;
+//! let dir = std::env::temp_dir().join(format!("qorbits-atomic-doc-{}", std::process::id()));
+//! std::fs::create_dir_all(&dir).unwrap();
+//! let f = dir.join("x.txt");
+//! write_atomic(&f, b"one", false).unwrap();
+//! assert!(write_atomic(&f, b"two", false).is_err(), "an existing file needs replace = true");
+//! write_atomic(&f, b"two", true).unwrap();
+//! assert_eq!(std::fs::read(&f).unwrap(), b"two");
+//! # std::fs::remove_dir_all(&dir).unwrap();
+//! ```
+
+use crate::error::{Error, Result};
+use std::fs::{File, OpenOptions};
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+/// A temporary file beside its target, removed on drop unless committed.
+pub struct TempFile {
+    tmp: PathBuf,
+    armed: bool,
+}
+
+impl TempFile {
+    /// Checks that `target` may be written (refusing an existing file unless `replace`) and
+    /// creates an empty `.<name>.tmp-<pid>` in the same directory.
+    pub fn create(target: &Path, replace: bool) -> Result<TempFile> {
+        let shown = target.display();
+        let name = target.file_name().ok_or_else(|| {
+            Error::Input(format!(
+                "{shown} is not a file name; give a path like dir/table.sqlite"
+            ))
+        })?;
+        if let Ok(m) = std::fs::symlink_metadata(target) {
+            if m.is_dir() {
+                return Err(Error::Io(format!(
+                    "{shown} is a directory; give a file name inside it"
+                )));
+            }
+            if m.file_type().is_symlink() {
+                return Err(Error::Io(format!(
+                    "{shown} is a symbolic link; qorbits replaces only regular files, so give \
+                     the path of the file itself or remove the link"
+                )));
+            }
+            if !m.is_file() {
+                return Err(Error::Io(format!(
+                    "{shown} is not a regular file (a device, socket or pipe); qorbits \
+                     replaces only regular files"
+                )));
+            }
+            if !replace {
+                return Err(Error::Exists(target.to_path_buf()));
+            }
+        }
+        let dir = match target.parent() {
+            Some(d) if !d.as_os_str().is_empty() => d,
+            _ => Path::new("."),
+        };
+        if !dir.is_dir() {
+            return Err(Error::Io(format!(
+                "cannot write {shown}: directory {} does not exist; create it first",
+                dir.display()
+            )));
+        }
+        let mut tmp_name = std::ffi::OsString::from(".");
+        tmp_name.push(name);
+        tmp_name.push(format!(".tmp-{}", std::process::id()));
+        let tmp = dir.join(tmp_name);
+        // A leftover of an earlier process with the same id is ours to replace.
+        let _ = std::fs::remove_file(&tmp);
+        OpenOptions::new()
+            .write(true)
+            .create_new(true)
+            .open(&tmp)
+            .map_err(|e| {
+                Error::Io(format!(
+                    "cannot write {shown}: cannot create {} ({e}); check that {} is writable",
+                    tmp.display(),
+                    dir.display()
+                ))
+            })?;
+        Ok(TempFile { tmp, armed: true })
+    }
+
+    /// Path of the temporary file.
+    pub fn path(&self) -> &Path {
+        &self.tmp
+    }
+
+    /// Flushes the temporary file to disk and moves it to `target`: replacing an existing
+    /// file only with `replace`, never leaving a partial file at `target`.
+    pub fn commit(mut self, target: &Path, replace: bool) -> Result<()> {
+        let shown = target.display();
+        let io = |what: &str, e: std::io::Error| {
+            Error::Io(format!("cannot write {shown}: {what} ({e})"))
+        };
+        File::open(&self.tmp)
+            .and_then(|f| f.sync_all())
+            .map_err(|e| io("cannot flush the temporary file to disk", e))?;
+        if replace {
+            std::fs::rename(&self.tmp, target)
+                .map_err(|e| io("cannot rename the temporary file", e))?;
+        } else {
+            // A hard link never replaces an existing file, so a file that appeared since
+            // `create` is not overwritten; rename where links are not supported.
+            match std::fs::hard_link(&self.tmp, target) {
+                Ok(()) => {
+                    let _ = std::fs::remove_file(&self.tmp);
+                }
+                Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => {
+                    return Err(Error::Exists(target.to_path_buf()));
+                }
+                Err(_) => {
+                    if std::fs::symlink_metadata(target).is_ok() {
+                        return Err(Error::Exists(target.to_path_buf()));
+                    }
+                    std::fs::rename(&self.tmp, target)
+                        .map_err(|e| io("cannot rename the temporary file", e))?;
+                }
+            }
+        }
+        self.armed = false;
+        // Make the new directory entry durable; best effort (some filesystems refuse it).
+        if let Some(dir) = target.parent().filter(|d| !d.as_os_str().is_empty()) {
+            let _ = File::open(dir).and_then(|d| d.sync_all());
+        }
+        Ok(())
+    }
+}
+
+impl Drop for TempFile {
+    fn drop(&mut self) {
+        if self.armed {
+            let _ = std::fs::remove_file(&self.tmp);
+        }
+    }
+}
+
+/// Writes `bytes` to `target` atomically (temporary file, fsync, rename).
+pub fn write_atomic(target: &Path, bytes: &[u8], replace: bool) -> Result<()> {
+    let tmp = TempFile::create(target, replace)?;
+    OpenOptions::new()
+        .write(true)
+        .open(tmp.path())
+        .and_then(|mut f| f.write_all(bytes))
+        .map_err(|e| Error::Io(format!("cannot write {}: {e}", target.display())))?;
+    tmp.commit(target, replace)
+}
+
+/// A new, empty, private directory under the system's temporary directory, for work whose
+/// files must not land anywhere else (a rebuild). It is created here, never reused, so
+/// nothing planted beforehand can redirect what is written in it.
+pub fn fresh_temp_dir(purpose: &str) -> Result<PathBuf> {
+    use std::os::unix::fs::DirBuilderExt;
+    let base = std::env::temp_dir();
+    let nanos = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.subsec_nanos());
+    for k in 0..100u32 {
+        let dir = base.join(format!(
+            "qorbits-{purpose}-{}-{nanos:x}-{k}",
+            std::process::id()
+        ));
+        match std::fs::DirBuilder::new().mode(0o700).create(&dir) {
+            Ok(()) => return Ok(dir),
+            Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => continue,
+            Err(e) => {
+                return Err(Error::Io(format!(
+                    "cannot create a directory for the {purpose} in {}: {e}",
+                    base.display()
+                )))
+            }
+        }
+    }
+    Err(Error::Io(format!(
+        "cannot create a fresh directory for the {purpose} in {}",
+        base.display()
+    )))
+}

@@ -1,0 +1,351 @@
+//! Manifests (JSON) of built tables, and verification of a table against its manifest
+//! (DESIGN §5).
+//!
+//! A manifest records the parameters, the versions (builder, schema, SQLite), row counts
+//! by signature and by Galois group, the file's SHA-256 and the content SHA-256 — the hash
+//! of a text rendering of every table that anyone can recompute with the sqlite3 shell and
+//! sha256sum (`content_recipe`). The content hash is what a paper cites.
+//!
+//! ```
+//! use qorbits::table::manifest::default_manifest_path;
+//! use std::path::Path;
+//! assert_eq!(
+//!     default_manifest_path(Path::new("out/qorbits-h1e6.sqlite")),
+//!     Path::new("out/qorbits-h1e6.manifest.json")
+//! );
+//! ```
+
+use crate::error::{Error, Result};
+use crate::form::galois::GaloisGroup;
+use crate::form::Signature;
+use crate::progress::Progress;
+use crate::table::atomic::{fresh_temp_dir, write_atomic};
+use crate::table::hash::{content_sha256, file_sha256};
+use crate::table::reader::{open_table, table_params};
+use crate::table::row::Params;
+use crate::table::schema::{CONTENT_SQL, SCHEMA_VERSION};
+use serde::{Deserialize, Serialize};
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+/// The format tag of manifests written by this builder.
+pub const FORMAT: &str = "qorbits-manifest/1";
+
+/// Versions of what made the file.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Versions {
+    /// qorbits version.
+    pub builder: String,
+    /// Schema version of the tables.
+    pub schema: u32,
+    /// The bundled SQLite library.
+    pub sqlite: String,
+}
+
+/// Row counts.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Counts {
+    /// Rows of `classes`.
+    pub classes: u64,
+    /// Rows of `pairs`.
+    pub pairs: u64,
+    /// Classes by signature name (`4real`, `2real`, `posdef`, `negdef`).
+    pub by_signature: BTreeMap<String, u64>,
+    /// Classes by Galois group (`S4` … `V4`) and `reducible`.
+    pub by_galois: BTreeMap<String, u64>,
+    /// Everywhere locally soluble classes.
+    pub els: u64,
+    /// Classes over Q of the everywhere locally soluble classes without a rational root,
+    /// summed over the pairs.
+    pub rational_els: u64,
+}
+
+/// The file itself.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct FileInfo {
+    /// File name (no directory).
+    pub name: String,
+    /// Size in bytes.
+    pub bytes: u64,
+    /// SHA-256 of the bytes, lowercase hex.
+    pub sha256: String,
+}
+
+/// A manifest (field order is the JSON order).
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Manifest {
+    /// [`FORMAT`].
+    pub format: String,
+    /// Build parameters.
+    pub parameters: Params,
+    /// Versions.
+    pub versions: Versions,
+    /// Row counts.
+    pub counts: Counts,
+    /// The file.
+    pub file: FileInfo,
+    /// SHA-256 of the content rendering (see `content_recipe`).
+    pub content_sha256: String,
+    /// Shell command that recomputes `content_sha256` from the file.
+    pub content_recipe: String,
+}
+
+/// `x.sqlite` → `x.manifest.json` (any other name gets `.manifest.json` appended).
+pub fn default_manifest_path(db: &Path) -> PathBuf {
+    let name = db
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let stem = name.strip_suffix(".sqlite").unwrap_or(&name);
+    db.with_file_name(format!("{stem}.manifest.json"))
+}
+
+/// The shell recipe for the content hash of `file_name`.
+pub fn content_recipe(file_name: &str) -> String {
+    format!(
+        "sqlite3 -batch -noheader -list -separator '|' {file_name} \"{CONTENT_SQL}\" | sha256sum"
+    )
+}
+
+fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
+    let one =
+        |sql: &str| -> Result<u64> { Ok(conn.query_row(sql, [], |r| r.get::<_, i64>(0))? as u64) };
+    let count_by = |column: &str, names: &[&str]| -> Result<BTreeMap<String, u64>> {
+        let sql = format!("SELECT count(*) FROM classes WHERE {column} = ?1");
+        let mut out = BTreeMap::new();
+        for name in names {
+            let n: i64 = conn.query_row(&sql, [name], |r| r.get(0))?;
+            out.insert(name.to_string(), n as u64);
+        }
+        Ok(out)
+    };
+    let by_signature = count_by("signature", &Signature::ALL.map(Signature::name))?;
+    let mut by_galois = count_by("galois", &GaloisGroup::ALL.map(GaloisGroup::name))?;
+    by_galois.insert(
+        "reducible".into(),
+        one("SELECT count(*) FROM classes WHERE irreducible = 0")?,
+    );
+    Ok(Counts {
+        classes: one("SELECT count(*) FROM classes")?,
+        pairs: one("SELECT count(*) FROM pairs")?,
+        by_signature,
+        by_galois,
+        els: one("SELECT count(*) FROM classes WHERE els = 1")?,
+        rational_els: one("SELECT coalesce(sum(rational_els), 0) FROM pairs")?,
+    })
+}
+
+/// The manifest of a table file, computed from the file (counts by SQL).
+pub fn manifest_for(path: &Path) -> Result<Manifest> {
+    let conn = open_table(path)?;
+    let params = table_params(&conn)?;
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let bytes = std::fs::metadata(path)
+        .map_err(|e| Error::Io(format!("{}: {e}", path.display())))?
+        .len();
+    Ok(Manifest {
+        format: FORMAT.into(),
+        parameters: params,
+        versions: Versions {
+            builder: env!("CARGO_PKG_VERSION").into(),
+            schema: SCHEMA_VERSION,
+            sqlite: rusqlite::version().into(),
+        },
+        counts: counts(&conn)?,
+        file: FileInfo {
+            name: name.clone(),
+            bytes,
+            sha256: file_sha256(path)?,
+        },
+        content_sha256: content_sha256(&conn)?,
+        content_recipe: content_recipe(&name),
+    })
+}
+
+/// The manifest as pretty JSON with a final newline (deterministic).
+pub fn manifest_json(m: &Manifest) -> String {
+    let mut s = serde_json::to_string_pretty(m).expect("manifests serialise");
+    s.push('\n');
+    s
+}
+
+/// Write a manifest atomically; an existing file is refused unless `replace`.
+pub fn write_manifest(path: &Path, m: &Manifest, replace: bool) -> Result<()> {
+    write_atomic(path, manifest_json(m).as_bytes(), replace)
+}
+
+/// Whether `name` is a plain file name: not empty, not `.` or `..`, no path separator, no
+/// control character, at most 255 bytes. A manifest is untrusted input, and its file name
+/// must never be able to name a place outside the directory it is used in.
+pub fn check_file_name(name: &str) -> std::result::Result<(), String> {
+    if name.is_empty() {
+        return Err("is empty".into());
+    }
+    if name == "." || name == ".." {
+        return Err(format!("'{name}' names a directory"));
+    }
+    if name.contains('/') || name.contains('\\') {
+        return Err("contains a path separator".into());
+    }
+    if name.chars().any(char::is_control) {
+        return Err("contains a control character".into());
+    }
+    if name.len() > 255 {
+        return Err("is longer than 255 bytes".into());
+    }
+    Ok(())
+}
+
+/// The checks [`read_manifest`] makes on a parsed manifest before anything uses it.
+fn check_manifest(m: &Manifest) -> std::result::Result<(), String> {
+    check_file_name(&m.file.name).map_err(|why| {
+        format!(
+            "its file name {:?} {why}; a manifest names a plain file, never a path",
+            m.file.name
+        )
+    })?;
+    let hex64 = |h: &str| h.len() == 64 && h.bytes().all(|b| b.is_ascii_hexdigit());
+    if !hex64(&m.file.sha256) || !hex64(&m.content_sha256) {
+        return Err("its hashes are not 64 hexadecimal digits".into());
+    }
+    if !(1..=crate::enumerate::bounds::MAX_HEIGHT).contains(&m.parameters.height) {
+        return Err(format!(
+            "its height {} is outside the heights a table can have (1 to {})",
+            m.parameters.height,
+            crate::enumerate::bounds::MAX_HEIGHT
+        ));
+    }
+    // SQLite's own limit on a database file is below 2^48 bytes.
+    if m.file.bytes == 0 || m.file.bytes > 1 << 48 {
+        return Err(format!(
+            "its file size {} bytes is impossible",
+            m.file.bytes
+        ));
+    }
+    Ok(())
+}
+
+/// Read a manifest, with a clear error for a missing, malformed or implausible file (see
+/// [`check_file_name`]: the file name must be a plain name, never a path).
+pub fn read_manifest(path: &Path) -> Result<Manifest> {
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| Error::Io(format!("cannot read the manifest {}: {e}", path.display())))?;
+    let m: Manifest = serde_json::from_str(&text)
+        .map_err(|e| Error::Input(format!("{} is not a qorbits manifest: {e}", path.display())))?;
+    check_manifest(&m).map_err(|why| {
+        Error::Input(format!(
+            "{} is not a valid qorbits manifest: {why}",
+            path.display()
+        ))
+    })?;
+    Ok(m)
+}
+
+/// One verification check.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Check {
+    /// What is checked.
+    pub name: String,
+    /// Whether it matched.
+    pub ok: bool,
+    /// Expected and found values, or why it could not be checked.
+    pub detail: String,
+}
+
+fn check(name: &str, want: impl std::fmt::Display, got: impl std::fmt::Display) -> Check {
+    let (w, g) = (want.to_string(), got.to_string());
+    Check {
+        name: name.into(),
+        ok: w == g,
+        detail: if w == g {
+            w
+        } else {
+            format!("manifest {w}, file {g}")
+        },
+    }
+}
+
+/// Check a table against a manifest: file hash, schema version, content hash and counts.
+/// A file that cannot be opened yields failed checks, not an error.
+pub fn verify(db: &Path, m: &Manifest) -> Vec<Check> {
+    let mut out = Vec::new();
+    match file_sha256(db) {
+        Ok(h) => out.push(check("file sha256", &m.file.sha256, h)),
+        Err(e) => {
+            out.push(Check {
+                name: "file sha256".into(),
+                ok: false,
+                detail: e.to_string(),
+            });
+            return out;
+        }
+    }
+    if m.format != FORMAT {
+        out.push(Check {
+            name: "manifest format".into(),
+            ok: false,
+            detail: format!("unknown format {}", m.format),
+        });
+    }
+    out.push(check("schema version", m.versions.schema, SCHEMA_VERSION));
+    match manifest_for(db) {
+        Ok(got) => {
+            out.push(check(
+                "content sha256",
+                &m.content_sha256,
+                &got.content_sha256,
+            ));
+            out.push(check("height", m.parameters.height, got.parameters.height));
+            out.push(check(
+                "include_reducible",
+                m.parameters.include_reducible,
+                got.parameters.include_reducible,
+            ));
+            out.push(check("classes", m.counts.classes, got.counts.classes));
+            out.push(check("pairs", m.counts.pairs, got.counts.pairs));
+            out.push(check("els classes", m.counts.els, got.counts.els));
+            out.push(check(
+                "els classes over Q",
+                m.counts.rational_els,
+                got.counts.rational_els,
+            ));
+            for (k, v) in &m.counts.by_signature {
+                out.push(check(
+                    &format!("signature {k}"),
+                    v,
+                    got.counts.by_signature.get(k).copied().unwrap_or(0),
+                ));
+            }
+            for (k, v) in &m.counts.by_galois {
+                out.push(check(
+                    &format!("galois {k}"),
+                    v,
+                    got.counts.by_galois.get(k).copied().unwrap_or(0),
+                ));
+            }
+        }
+        Err(e) => out.push(Check {
+            name: "table".into(),
+            ok: false,
+            detail: e.to_string(),
+        }),
+    }
+    out
+}
+
+/// Rebuilds the table a manifest describes and checks the result against it, on the
+/// current rayon pool. The manifest is untrusted: it is validated by [`read_manifest`], and
+/// the rebuild happens in a fresh private directory under a fixed name, removed afterwards,
+/// so nothing from the manifest becomes part of a path.
+pub fn rebuild_and_compare(manifest: &Path, progress: &dyn Progress) -> Result<Vec<Check>> {
+    let m = read_manifest(manifest)?;
+    let dir = fresh_temp_dir("rebuild")?;
+    let out = dir.join("rebuild.sqlite");
+    let result = crate::table::pipeline::build(&m.parameters, &out, false, progress)
+        .map(|_| verify(&out, &m));
+    let _ = std::fs::remove_dir_all(&dir);
+    result
+}

@@ -1,0 +1,19 @@
+//! Stage 4, the table: row types ([`row`]), the classification of candidates
+//! ([`classify`]), the grouping into labelled pairs ([`group`]), the pipeline and the build
+//! ([`pipeline`]), the storage contract ([`schema`]), the writer ([`writer`]) with its
+//! atomic files ([`atomic`]), the reader ([`reader`]), the hashes ([`hash`]), manifests and
+//! verification ([`manifest`]), queries by invariants ([`query`]) and counts against the
+//! asymptotic main terms ([`stats`]).
+
+pub mod atomic;
+pub mod classify;
+pub mod group;
+pub mod hash;
+pub mod manifest;
+pub mod pipeline;
+pub mod query;
+pub mod reader;
+pub mod row;
+pub mod schema;
+pub mod stats;
+pub mod writer;

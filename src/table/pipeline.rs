@@ -1,0 +1,145 @@
+//! The pipeline: enumerate → classify → group → write → manifest (DESIGN §4, §5), for a
+//! whole table ([`enumerate_classes`], [`build`]) and for the classes of one pair
+//! ([`classes_with_invariants`], through the search by invariants, no table needed).
+//!
+//! ```
+//! use qorbits::progress::Silent;
+//! use qorbits::table::pipeline::enumerate_classes;
+//! use qorbits::table::row::Params;
+//! let t = enumerate_classes(&Params { height: 2000, include_reducible: false }, &Silent).unwrap();
+//! assert!(t.rows().all(|r| r.h4 < 8000 && r.irreducible()));
+//! ```
+
+use crate::enumerate::bounds::{Bounds, Task};
+use crate::enumerate::by_invariants::forms_with_invariants;
+use crate::error::{Error, Result};
+use crate::form::Form;
+use crate::progress::Progress;
+use crate::table::classify::{classify, Annotation};
+use crate::table::group::{group_rows, make_pair};
+use crate::table::manifest::{default_manifest_path, manifest_for, write_manifest, Manifest};
+use crate::table::row::{ClassRow, Pair, Params, Table};
+use crate::table::writer::write_table;
+use rayon::prelude::*;
+use rug::Integer;
+use std::path::{Path, PathBuf};
+
+/// Every class with `H < height` (irreducible, or all with `include_reducible`), in table
+/// order. Runs on the current rayon pool; `progress` advances once per task.
+pub fn enumerate_classes(params: &Params, progress: &dyn Progress) -> Result<Table> {
+    enumerate_classes_with(params, progress, true)
+}
+
+/// [`enumerate_classes`] with the local data left out when `with_local` is false (rows
+/// with an empty `local`; for benchmarks — such rows do not make a valid table).
+pub fn enumerate_classes_with(
+    params: &Params,
+    progress: &dyn Progress,
+    with_local: bool,
+) -> Result<Table> {
+    let bounds = Bounds::for_height(params.height)?;
+    let tasks = Task::all(&bounds, params.include_reducible);
+    let what = Annotation {
+        include_reducible: params.include_reducible,
+        with_local,
+    };
+    progress.start("enumerating", tasks.len() as u64);
+    let parts: Vec<Result<(Vec<ClassRow>, u64)>> = tasks
+        .par_iter()
+        .map(|t| {
+            let r = run_task(t, &bounds, what);
+            progress.advance(1);
+            r
+        })
+        .collect();
+    let mut rows = Vec::new();
+    let mut candidates = 0;
+    for part in parts {
+        let (r, n) = part?;
+        rows.extend(r);
+        candidates += n;
+    }
+    Ok(Table {
+        params: *params,
+        pairs: group_rows(rows)?,
+        candidates,
+    })
+}
+
+fn run_task(task: &Task, bounds: &Bounds, what: Annotation) -> Result<(Vec<ClassRow>, u64)> {
+    let mut rows = Vec::new();
+    let mut failure = None;
+    let n = task.for_each(bounds, |c| {
+        if failure.is_some() {
+            return;
+        }
+        match classify(&Form::new(c.map(i128::from)), what) {
+            Ok(Some(row)) => rows.push(row),
+            Ok(None) => {}
+            Err(e) => failure = Some(e),
+        }
+    });
+    match failure {
+        Some(e) => Err(e),
+        None => Ok((rows, n)),
+    }
+}
+
+/// Every class with invariants (I, J) (irreducible, or all with `include_reducible`), each
+/// with every column of the table, as one pair — at any height, without a table. Runs on
+/// the current rayon pool.
+pub fn classes_with_invariants(i: &Integer, j: &Integer, include_reducible: bool) -> Result<Pair> {
+    let forms = forms_with_invariants(i, j, include_reducible)?;
+    let what = Annotation {
+        include_reducible,
+        with_local: true,
+    };
+    let rows: Vec<Option<ClassRow>> = forms
+        .par_iter()
+        .map(|f| classify(&Form::new(*f), what))
+        .collect::<Result<_>>()?;
+    let mut rows: Vec<ClassRow> = rows.into_iter().flatten().collect();
+    rows.sort_by_key(ClassRow::key);
+    let (ii, jj) = (
+        i.to_i64().expect("checked by the search"),
+        j.to_i64().expect("checked by the search"),
+    );
+    make_pair(ii, jj, rows)
+}
+
+/// What [`build`] wrote.
+#[derive(Clone, Debug)]
+pub struct BuildSummary {
+    /// The table file.
+    pub table: PathBuf,
+    /// Its manifest, beside it.
+    pub manifest_path: PathBuf,
+    /// The manifest.
+    pub manifest: Manifest,
+}
+
+/// Builds the table of `params` into `out` and its manifest beside it
+/// ([`default_manifest_path`]), on the current rayon pool. Existing files are refused
+/// ([`Error::Exists`]) unless `replace`, before any work is done.
+pub fn build(
+    params: &Params,
+    out: &Path,
+    replace: bool,
+    progress: &dyn Progress,
+) -> Result<BuildSummary> {
+    let manifest_path = default_manifest_path(out);
+    for target in [out, manifest_path.as_path()] {
+        if !replace && std::fs::symlink_metadata(target).is_ok() {
+            return Err(Error::Exists(target.to_path_buf()));
+        }
+    }
+    let table = enumerate_classes(params, progress)?;
+    write_table(out, &table, replace)?;
+    let manifest = manifest_for(out)?;
+    write_manifest(&manifest_path, &manifest, replace)?;
+    Ok(BuildSummary {
+        table: out.to_path_buf(),
+        manifest_path,
+        manifest,
+    })
+}

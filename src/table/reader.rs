@@ -1,0 +1,301 @@
+//! Reading a finished table: read-only opening with clear errors ([`open_table`]), its
+//! parameters ([`table_params`]) and the classes of one pair ([`pair_from_table`]).
+//!
+//! ```
+//! use qorbits::table::reader::open_table;
+//! let e = open_table(std::path::Path::new("no/such/table.sqlite")).unwrap_err();
+//! assert!(e.to_string().contains("does not exist"));
+//! ```
+
+use crate::arith::primes::factor;
+use crate::error::{Error, Result};
+use crate::form::galois::FactorPattern;
+use crate::form::invariants_from_ij;
+use crate::form::local::LocalPlace;
+use crate::table::row::{ClassRow, Pair, Params};
+use crate::table::schema::{
+    galois_from_name, pattern_from_name, place_from_column, signature_from_name, APPLICATION_ID,
+    SCHEMA_VERSION,
+};
+use rug::Integer;
+use rusqlite::{Connection, ErrorCode, OpenFlags, OptionalExtension};
+use std::path::Path;
+
+/// How a connection's file is named in messages.
+pub(crate) fn shown(conn: &Connection) -> String {
+    match conn.path() {
+        Some(p) if !p.is_empty() => p.to_string(),
+        _ => "the table".to_string(),
+    }
+}
+
+/// A one-line error for a failed query on a table.
+pub(crate) fn read_error(conn: &Connection, e: rusqlite::Error) -> Error {
+    match e.sqlite_error_code() {
+        Some(ErrorCode::DatabaseCorrupt) | Some(ErrorCode::NotADatabase) => {
+            Error::Database(format!(
+                "{} is damaged ({e}); verify it against its manifest or rebuild it",
+                shown(conn)
+            ))
+        }
+        _ => Error::Database(format!("cannot read {}: {e}", shown(conn))),
+    }
+}
+
+/// Opens a qorbits table read-only, checking that it is an SQLite file written by qorbits
+/// with a schema version this build reads.
+pub fn open_table(path: &Path) -> Result<Connection> {
+    let p = path.display();
+    match std::fs::metadata(path) {
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+            return Err(Error::Io(format!(
+                "no table at {p}: the file does not exist; check the path or build the table first"
+            )));
+        }
+        Err(e) => return Err(Error::Io(format!("cannot read {p}: {e}"))),
+        Ok(m) if m.is_dir() => {
+            return Err(Error::Io(format!("{p} is a directory, not a table file")))
+        }
+        Ok(m) if m.len() == 0 => {
+            return Err(Error::Database(format!(
+                "{p} is empty (0 bytes), not a qorbits table; rebuild it"
+            )));
+        }
+        Ok(_) => {}
+    }
+    let unreadable = |e: rusqlite::Error| {
+        Error::Database(format!(
+            "{p} is not a readable SQLite file ({e}); check the path"
+        ))
+    };
+    let conn = Connection::open_with_flags(
+        path,
+        OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .map_err(unreadable)?;
+    let app: i32 = conn
+        .query_row("PRAGMA application_id", [], |r| r.get(0))
+        .map_err(unreadable)?;
+    if app != APPLICATION_ID {
+        return Err(Error::Database(format!(
+            "{p} is an SQLite database but not a qorbits table (application_id {app:#010x}, expected \
+             {APPLICATION_ID:#010x}); check the path"
+        )));
+    }
+    let version: i64 = conn
+        .query_row("PRAGMA user_version", [], |r| r.get(0))
+        .map_err(unreadable)?;
+    if version != i64::from(SCHEMA_VERSION) {
+        return Err(Error::Database(format!(
+            "{p} is a qorbits table with schema version {version}, but this qorbits reads version \
+             {SCHEMA_VERSION}; use a matching qorbits release or rebuild the table"
+        )));
+    }
+    // Extra consistency checks on every page read, so damage shows as an error early.
+    conn.pragma_update(None, "cell_size_check", true)
+        .map_err(unreadable)?;
+    Ok(conn)
+}
+
+/// Every row of a query, mapped by `f`, with one-line errors.
+fn query_all<T, P: rusqlite::Params>(
+    conn: &Connection,
+    sql: &str,
+    params: P,
+    f: impl FnMut(&rusqlite::Row<'_>) -> rusqlite::Result<T>,
+) -> Result<Vec<T>> {
+    (|| {
+        let mut st = conn.prepare_cached(sql)?;
+        let rows = st.query_map(params, f)?;
+        rows.collect::<rusqlite::Result<Vec<T>>>()
+    })()
+    .map_err(|e| read_error(conn, e))
+}
+
+/// The value of `key` in the `meta` table.
+pub fn meta_value(conn: &Connection, key: &str) -> Result<String> {
+    conn.query_row("SELECT value FROM meta WHERE key = ?1", [key], |r| r.get(0))
+        .optional()
+        .map_err(|e| read_error(conn, e))?
+        .ok_or_else(|| {
+            Error::Database(format!(
+                "{} has no meta row '{key}'; the table is damaged or was not written by qorbits",
+                shown(conn)
+            ))
+        })
+}
+
+/// The parameters the table was built with (from `meta`).
+pub fn table_params(conn: &Connection) -> Result<Params> {
+    let bad = |key: &str, v: &str| {
+        Error::Database(format!(
+            "{}: meta row '{key}' has the invalid value '{v}'; the table is damaged",
+            shown(conn)
+        ))
+    };
+    let h = meta_value(conn, "height")?;
+    let height = h.parse::<i128>().map_err(|_| bad("height", &h))?;
+    let r = meta_value(conn, "include_reducible")?;
+    let include_reducible = match r.as_str() {
+        "0" => false,
+        "1" => true,
+        _ => return Err(bad("include_reducible", &r)),
+    };
+    Ok(Params {
+        height,
+        include_reducible,
+    })
+}
+
+/// The columns of `classes` as stored, before the names are parsed.
+struct StoredClass {
+    id: i64,
+    label: String,
+    ints: [i64; 9],
+    real_roots: i64,
+    signature: String,
+    factorisation: String,
+    irreducible: i64,
+    galois: Option<String>,
+    stabiliser: i64,
+    rational: Option<String>,
+}
+
+impl StoredClass {
+    fn into_class_row(self, conn: &Connection) -> Result<ClassRow> {
+        let bad = |what: &str| {
+            Error::Database(format!(
+                "{}: class id {} has {what}; the table is damaged",
+                shown(conn),
+                self.id
+            ))
+        };
+        let signature =
+            signature_from_name(&self.signature).ok_or_else(|| bad("an unknown signature"))?;
+        let pattern = pattern_from_name(&self.factorisation)
+            .ok_or_else(|| bad("an unknown factorisation"))?;
+        let galois = match &self.galois {
+            None => None,
+            Some(g) => Some(galois_from_name(g).ok_or_else(|| bad("an unknown Galois group"))?),
+        };
+        let irreducible = pattern == FactorPattern::Irreducible;
+        if self.real_roots != i64::from(signature.real_roots())
+            || self.irreducible != i64::from(irreducible)
+            || irreducible != galois.is_some()
+        {
+            return Err(bad("inconsistent columns"));
+        }
+        let stabiliser =
+            u8::try_from(self.stabiliser).map_err(|_| bad("an invalid stabiliser order"))?;
+        let [a, b, c, d, e, i, j, disc, h4] = self.ints;
+        let local = query_all(
+            conn,
+            "SELECT p, v_disc, pattern, soluble FROM local WHERE class_id = ?1 ORDER BY p = 0, p",
+            [self.id],
+            |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?)),
+        )?;
+        let local = local
+            .into_iter()
+            .map(
+                |(p, v_disc, pattern, soluble): (i64, Option<u32>, String, bool)| {
+                    let place = place_from_column(p)
+                        .ok_or_else(|| bad("a local row at an invalid place"))?;
+                    Ok(LocalPlace {
+                        place,
+                        v_disc,
+                        pattern,
+                        soluble,
+                    })
+                },
+            )
+            .collect::<Result<Vec<_>>>()?;
+        Ok(ClassRow {
+            form: [a, b, c, d, e],
+            i,
+            j,
+            disc,
+            h4,
+            signature,
+            pattern,
+            galois,
+            stabiliser,
+            label: self.label,
+            rational: self.rational,
+            local,
+        })
+    }
+}
+
+/// The classes of the pair (I, J) = (`i`, `j`) as the table holds them (none when the pair
+/// is not in it), in table order, with the grouping over Q read back from `rational_class`
+/// (uses the (I, J) index).
+pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
+    let stored = query_all(
+        conn,
+        "SELECT id, label, a, b, c, d, e, I, J, disc, h4, real_roots, signature, factorisation, \
+         irreducible, galois, stabiliser, rational_class FROM classes WHERE I = ?1 AND J = ?2 ORDER BY id",
+        [i, j],
+        |r| {
+            let mut ints = [0i64; 9];
+            for (k, v) in ints.iter_mut().enumerate() {
+                *v = r.get(k + 2)?;
+            }
+            Ok(StoredClass {
+                id: r.get(0)?,
+                label: r.get(1)?,
+                ints,
+                real_roots: r.get(11)?,
+                signature: r.get(12)?,
+                factorisation: r.get(13)?,
+                irreducible: r.get(14)?,
+                galois: r.get(15)?,
+                stabiliser: r.get(16)?,
+                rational: r.get(17)?,
+            })
+        },
+    )?;
+    let classes = stored
+        .into_iter()
+        .map(|s| s.into_class_row(conn))
+        .collect::<Result<Vec<_>>>()?;
+    let damaged = || {
+        Error::Database(format!(
+            "{}: the pair ({i}, {j}) is inconsistent; the table is damaged",
+            shown(conn)
+        ))
+    };
+    let inv = invariants_from_ij(i128::from(i), i128::from(j)).ok_or_else(damaged)?;
+    let disc = i64::try_from(inv.disc).map_err(|_| damaged())?;
+    let h4 = i64::try_from(inv.h4).map_err(|_| damaged())?;
+    let mut over_q: Vec<Vec<usize>> = Vec::new();
+    for (k, r) in classes.iter().enumerate() {
+        let Some(first) = &r.rational else { continue };
+        match over_q.iter_mut().find(|c| classes[c[0]].label == *first) {
+            Some(c) => c.push(k),
+            None if r.label == *first => over_q.push(vec![k]),
+            None => return Err(damaged()),
+        }
+    }
+    let disc_factors = if classes.is_empty() {
+        factor(&Integer::from(disc))
+            .into_iter()
+            .map(|(p, e)| (p.to_i64().expect("a factor of an i64"), e))
+            .collect()
+    } else {
+        query_all(
+            conn,
+            "SELECT p, e FROM pair_primes WHERE I = ?1 AND J = ?2 ORDER BY p",
+            [i, j],
+            |r| Ok((r.get(0)?, r.get(1)?)),
+        )?
+    };
+    Ok(Pair {
+        i,
+        j,
+        disc,
+        h4,
+        disc_factors,
+        classes,
+        over_q,
+    })
+}
