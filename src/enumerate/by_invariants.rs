@@ -176,3 +176,34 @@ pub fn forms_with_invariants(
     }
     Ok(out)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_form_found_has_the_invariants_asked_for() {
+        for (i, j) in [(10i64, -29i64), (63, -1647), (145, -8048), (-48, 1404)] {
+            let (bi, bj) = (Integer::from(i), Integer::from(j));
+            for reducible in [false, true] {
+                let forms = forms_with_invariants(&bi, &bj, reducible).unwrap();
+                assert!(!forms.is_empty() || !reducible, "({i}, {j})");
+                for f in forms {
+                    let inv = Form::<i128>::new(f).invariants().unwrap();
+                    assert_eq!((inv.i, inv.j), (i128::from(i), i128::from(j)), "{f:?}");
+                    assert!(reducible || f[0] != 0, "a = 0 only with reducible forms");
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn pairs_without_classes_and_huge_pairs_are_refused() {
+        let e = forms_with_invariants(&Integer::from(1), &Integer::from(0), true).unwrap_err();
+        assert!(e.to_string().contains("no integral form"), "{e}");
+        // H ≥ 10²¹: I = 10⁷ + 2 gives |I|³ > 10²¹ (eligible: I ≡ 0 mod 3, J = 0).
+        let e = forms_with_invariants(&Integer::from(10_000_002), &Integer::from(0), false)
+            .unwrap_err();
+        assert!(e.to_string().contains("H ≥ 1e21"), "{e}");
+    }
+}

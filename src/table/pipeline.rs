@@ -143,3 +143,52 @@ pub fn build(
         manifest,
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::progress::Silent;
+
+    #[test]
+    fn the_search_by_invariants_gives_the_pairs_of_the_bulk_table() {
+        let params = Params {
+            height: 20_000,
+            include_reducible: true,
+        };
+        let t = enumerate_classes(&params, &Silent).unwrap();
+        assert!(t.candidates as usize >= t.classes());
+        for pair in t.pairs.iter().step_by(7) {
+            let got = classes_with_invariants(&Integer::from(pair.i), &Integer::from(pair.j), true)
+                .unwrap();
+            assert_eq!(&got, pair, "({}, {})", pair.i, pair.j);
+        }
+    }
+
+    #[test]
+    fn pairs_are_in_table_order_with_consistent_aggregates() {
+        let params = Params {
+            height: 20_000,
+            include_reducible: false,
+        };
+        let t = enumerate_classes(&params, &Silent).unwrap();
+        let keys: Vec<_> = t.rows().map(ClassRow::key).collect();
+        assert!(keys.windows(2).all(|w| w[0] < w[1]));
+        for p in &t.pairs {
+            assert!(p
+                .classes
+                .iter()
+                .all(|r| (r.i, r.j, r.disc, r.h4) == (p.i, p.j, p.disc, p.h4)));
+            let prod: i128 = p
+                .disc_factors
+                .iter()
+                .map(|&(q, e)| i128::from(q).pow(e))
+                .product();
+            assert_eq!(prod, i128::from(p.disc).abs());
+            let grouped: usize = p.over_q.iter().map(Vec::len).sum();
+            assert_eq!(
+                grouped,
+                p.classes.iter().filter(|r| r.grouped_over_q()).count()
+            );
+        }
+    }
+}
