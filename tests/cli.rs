@@ -29,11 +29,11 @@ fn reduce_prints_the_class_and_json() {
     let o = qorbits(&["reduce", "2", "-7", "4", "13", "-6"]);
     assert!(o.status.success());
     let (out, _) = text(&o);
-    assert!(out.contains("canonical    (2, -1, -5, -8, 6)"), "{out}");
+    assert!(out.contains("canonical    2 -1 -5 -8 6\n"), "{out}");
     assert!(out.contains("Galois group S4"), "{out}");
     let o = qorbits(&["reduce", "--json", "2", "-7", "4", "13", "-6"]);
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
-    assert_eq!(v["canonical"], serde_json::json!([2, -1, -5, -8, 6]));
+    assert_eq!(v["form"], serde_json::json!([2, -1, -5, -8, 6]));
     assert_eq!(v["I"], 145);
 }
 
@@ -70,7 +70,7 @@ fn build_verify_query_cite_stats() {
     assert!(text(&o).1.contains("--force"));
     assert_eq!(std::fs::read(&db).unwrap(), before);
     // verify: ok, then one flipped byte is caught.
-    let o = qorbits(&["verify", dbs]);
+    let o = qorbits(&["verify", "--db", dbs]);
     assert!(o.status.success(), "{:?}", text(&o));
     let mut bytes = before.clone();
     let k = bytes.len() / 2;
@@ -79,6 +79,7 @@ fn build_verify_query_cite_stats() {
     std::fs::write(&bad, &bytes).unwrap();
     let o = qorbits(&[
         "verify",
+        "--db",
         bad.to_str().unwrap(),
         "--manifest",
         d.join("t.manifest.json").to_str().unwrap(),
@@ -107,12 +108,12 @@ fn build_verify_query_cite_stats() {
     // cite names the content hash of the manifest.
     let m: serde_json::Value =
         serde_json::from_slice(&std::fs::read(d.join("t.manifest.json")).unwrap()).unwrap();
-    let cite = text(&qorbits(&["cite", dbs])).0;
+    let cite = text(&qorbits(&["cite", "--db", dbs])).0;
     assert!(
         cite.contains(m["content_sha256"].as_str().unwrap()) && cite.contains("@misc{"),
         "{cite}"
     );
-    let stats = text(&qorbits(&["stats", dbs])).0;
+    let stats = text(&qorbits(&["stats", "--db", dbs])).0;
     assert!(stats.contains("main term"), "{stats}");
     let _ = std::fs::remove_dir_all(&d);
 }
@@ -163,11 +164,14 @@ fn classes_without_a_table_are_computed_and_bad_pairs_refused() {
 fn selmer_prints_rank_and_elements() {
     // y² + y = x³ − x (rank 1, trivial torsion; from memory the first curve of rank 1):
     // 2-Selmer rank 1, one non-trivial element.
-    let o = qorbits(&["selmer", "--ainvs", "0", "0", "1", "-1", "0"]);
+    let o = qorbits(&["selmer", "--weierstrass", "0", "0", "1", "-1", "0"]);
     let (out, err) = text(&o);
     assert!(o.status.success(), "{err}");
     assert!(out.contains("2-Selmer rank  1 (order 2)"), "{out}");
-    assert!(out.contains("I = 48, J = -432"), "{out}");
+    assert!(
+        out.contains("\nI              48\nJ              -432\n"),
+        "{out}"
+    );
     let o = qorbits(&["selmer", "--short", "-7", "10", "--json"]);
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(v["selmer_rank"], 2);
@@ -181,13 +185,13 @@ fn selmer_prints_rank_and_elements() {
         .as_array()
         .unwrap()
         .iter()
-        .map(|r| r["canonical"].clone())
+        .map(|r| r["form"].clone())
         .collect();
     let elements: Vec<_> = v["elements"]
         .as_array()
         .unwrap()
         .iter()
-        .map(|e| e["quartic"].clone())
+        .map(|e| e["form"].clone())
         .collect();
     assert_eq!(forms, elements);
     // y² = x³ − x: three points of order 2, 2-Selmer rank 2 (the torsion), from memory
@@ -202,7 +206,7 @@ fn selmer_prints_rank_and_elements() {
         vec!["selmer", "--short", "-3", "2"], // singular
         vec!["selmer", "--short", "x", "2"],
         vec!["selmer", "--short", "100000000", "1"], // H ≈ 1e29: refused, not hours of search
-        vec!["selmer", "--ainvs", "0", "0", "1"],
+        vec!["selmer", "--weierstrass", "0", "0", "1"],
         vec!["selmer"],
         vec!["selmer-stats", "--height", "-5"],
     ] {
@@ -240,8 +244,8 @@ fn selmer_stats_states_the_family_and_bins() {
         "--curves",
     ]);
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
-    let ranks = v["ranks"].as_array().unwrap();
-    assert_eq!(v["curves"].as_u64().unwrap() as usize, ranks.len());
+    let ranks = v["curves"].as_array().unwrap();
+    assert_eq!(v["curve_count"].as_u64().unwrap() as usize, ranks.len());
     let total: u64 = ranks
         .iter()
         .map(|r| 1u64 << r["selmer_rank"].as_u64().unwrap())
@@ -252,7 +256,7 @@ fn selmer_stats_states_the_family_and_bins() {
         .as_array()
         .unwrap()
         .iter()
-        .map(|b| b["curves"].as_u64().unwrap())
+        .map(|b| b["curve_count"].as_u64().unwrap())
         .sum();
     assert_eq!(binned as usize, ranks.len());
 }

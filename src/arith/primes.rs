@@ -166,29 +166,33 @@ pub fn try_factor(n: &Integer, budget: u64) -> Option<Vec<(Integer, u32)>> {
     Some(out)
 }
 
-/// The text form of a factorisation: `p1^e1 * p2^e2 * …` (exponent 1 omitted), with a
-/// leading `-1 *` for a negative number; `1` or `-1` for units.
-pub fn factor_text(negative: bool, factors: &[(Integer, u32)]) -> String {
-    let mut parts: Vec<String> = Vec::new();
-    if negative {
-        parts.push("-1".into());
-    }
-    for (p, e) in factors {
-        parts.push(if *e == 1 {
-            p.to_string()
-        } else {
-            format!("{p}^{e}")
-        });
-    }
-    if parts.is_empty() {
+/// The text form of a factorisation of |n| (the table's `disc_factors`): the prime powers
+/// `p^e` in increasing order, separated by single spaces, the exponent left out when it is
+/// 1, e.g. `2^2 3 263 617`; `1` for |n| = 1 (no factors). Split on spaces, then on `^`, to
+/// read it back.
+pub fn factor_text<P: std::fmt::Display>(factors: &[(P, u32)]) -> String {
+    if factors.is_empty() {
         return "1".into();
     }
-    parts.join(" * ")
+    powers_text(factors)
 }
 
-/// [`factor_text`] of the factorisation of `n`.
+/// `b^e` tokens separated by single spaces, the exponent left out when it is 1: the house
+/// text form of factorisations (`2^2 3 263 617`) and of factor patterns mod p (`1^2 2`).
+pub fn powers_text<P: std::fmt::Display, E: Into<u64> + Copy>(items: &[(P, E)]) -> String {
+    let parts: Vec<String> = items
+        .iter()
+        .map(|(b, e)| match (*e).into() {
+            1 => b.to_string(),
+            e => format!("{b}^{e}"),
+        })
+        .collect();
+    parts.join(" ")
+}
+
+/// [`factor_text`] of the factorisation of `|n|`.
 pub fn factor_string(n: &Integer) -> String {
-    factor_text(*n < 0, &factor(n))
+    factor_text(&factor(n))
 }
 
 #[cfg(test)]
@@ -231,25 +235,22 @@ mod tests {
             Integer::from(100_000_000_003u64),
         );
         assert_eq!(factor(&Integer::from(&p * &q)), vec![(q, 1), (p, 1)]);
-        assert_eq!(
-            factor_string(&Integer::from(-1947252)),
-            "-1 * 2^2 * 3 * 263 * 617"
-        );
+        assert_eq!(factor_string(&Integer::from(-1947252)), "2^2 3 263 617");
     }
 
     #[test]
     fn factor_text_edge_cases() {
         let t = |n: i64| factor_string(&Integer::from(n));
         assert_eq!(t(1), "1");
-        assert_eq!(t(-1), "-1");
-        assert_eq!(t(-2), "-1 * 2");
-        assert_eq!(t(-3024), "-1 * 2^4 * 3^3 * 7");
+        assert_eq!(t(-1), "1");
+        assert_eq!(t(-2), "2");
+        assert_eq!(t(-3024), "2^4 3^3 7");
         assert_eq!(t(229), "229");
         assert_eq!(t(25), "5^2");
-        assert_eq!(t(i64::MIN), "-1 * 2^63");
+        assert_eq!(t(i64::MIN), "2^63");
         // 2^63 − 1 = 7² · 73 · 127 · 337 · 92737 · 649657 (checked with coreutils `factor`).
-        assert_eq!(t(i64::MAX), "7^2 * 73 * 127 * 337 * 92737 * 649657");
+        assert_eq!(t(i64::MAX), "7^2 73 127 337 92737 649657");
         // 999999999989 is prime (coreutils `factor`).
-        assert_eq!(t(-999_999_999_989), "-1 * 999999999989");
+        assert_eq!(t(-999_999_999_989), "999999999989");
     }
 }

@@ -1,22 +1,25 @@
-//! Rendering for people and programs: rows of the table as aligned text, JSON or CSV, and
+//! Rendering for people and programs (docs/output.md): rows of the table as aligned text
+//! (whitespace-separated, `-` for an empty cell), JSON, JSON Lines or CSV (RFC 4180), and
 //! the description of one class (`qorbits reduce`) as text or JSON.
 
 use qorbits::form::describe::{height_decimal, Description};
 use qorbits::form::galois::FactorPattern;
-use qorbits::form::local::{everywhere_soluble, insoluble_places, Place};
-use qorbits::form::{Form, Signature};
+use qorbits::form::local::{everywhere_soluble, insoluble_places, LocalPlace};
+use qorbits::form::{Gl2, Signature};
+use qorbits::table::json;
 use qorbits::table::row::ClassRow;
 use rug::Integer;
-use serde_json::{json, Number, Value};
-use std::fmt::Write;
+use serde_json::Value;
 
 /// Output format of a list of rows.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Format {
-    /// Aligned columns with a header.
+    /// Aligned columns with a header and a count line.
     Text,
     /// One JSON array of objects.
     Json,
+    /// One JSON object per line.
+    Jsonl,
     /// CSV with a header line.
     Csv,
 }
@@ -66,195 +69,224 @@ fn fields(r: &ClassRow) -> Vec<String> {
     ]
 }
 
-/// Rows in the chosen format (text ends with a count line).
-pub fn render_rows(rows: &[ClassRow], format: Format) -> String {
-    let mut out = String::new();
-    match format {
-        Format::Json => {
-            writeln!(
-                out,
-                "{}",
-                serde_json::to_string(rows).expect("rows serialise")
-            )
-            .expect("string");
+/// CSV text (RFC 4180 quoting) of a header and records.
+pub fn csv<I: IntoIterator<Item = Vec<String>>>(header: &[&str], records: I) -> String {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record(header).expect("CSV into memory");
+    for r in records {
+        w.write_record(&r).expect("CSV into memory");
+    }
+    String::from_utf8(w.into_inner().expect("CSV into memory")).expect("UTF-8")
+}
+
+/// Aligned columns: right-aligned, two spaces apart, `-` for an empty cell, so that every
+/// line splits on whitespace into the same number of fields.
+pub fn aligned(header: &[&str], records: &[Vec<String>]) -> String {
+    let cell = |s: &str| {
+        if s.is_empty() {
+            "-".to_string()
+        } else {
+            s.to_string()
         }
-        Format::Csv => {
-            writeln!(out, "{}", COLUMNS.join(",")).expect("string");
-            for r in rows {
-                writeln!(out, "{}", fields(r).join(",")).expect("string");
-            }
-        }
-        Format::Text => {
-            let table: Vec<Vec<String>> = rows.iter().map(fields).collect();
-            let widths: Vec<usize> = (0..COLUMNS.len())
-                .map(|k| {
-                    table
-                        .iter()
-                        .map(|f| f[k].len())
-                        .chain([COLUMNS[k].len()])
-                        .max()
-                        .unwrap_or(0)
-                })
-                .collect();
-            let line = |f: &[String]| {
-                f.iter()
-                    .zip(&widths)
-                    .map(|(s, w)| format!("{s:>w$}"))
-                    .collect::<Vec<_>>()
-                    .join("  ")
-            };
-            let header: Vec<String> = COLUMNS.iter().map(|s| s.to_string()).collect();
-            writeln!(out, "{}", line(&header)).expect("string");
-            for f in &table {
-                writeln!(out, "{}", line(f)).expect("string");
-            }
-            writeln!(out, "{} classes", rows.len()).expect("string");
-        }
+    };
+    let widths: Vec<usize> = (0..header.len())
+        .map(|k| {
+            records
+                .iter()
+                .map(|f| cell(&f[k]).chars().count())
+                .chain([header[k].len()])
+                .max()
+                .unwrap_or(0)
+        })
+        .collect();
+    let line = |f: Vec<String>| {
+        f.iter()
+            .zip(&widths)
+            .map(|(s, w)| format!("{s:>w$}"))
+            .collect::<Vec<_>>()
+            .join("  ")
+            + "\n"
+    };
+    let mut out = line(header.iter().map(|s| s.to_string()).collect());
+    for r in records {
+        out += &line(r.iter().map(|s| cell(s)).collect());
     }
     out
 }
 
-/// An exact integer as a JSON number (any size).
-pub fn json_int(n: &Integer) -> Value {
-    Value::Number(
-        n.to_string()
-            .parse::<Number>()
-            .expect("integers are JSON numbers"),
-    )
+/// `n class(es)`.
+pub fn count(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
 }
 
-fn json_form(f: &Form<Integer>) -> Value {
-    Value::Array(f.c.iter().map(json_int).collect())
-}
-
-/// The description of a class as one JSON object and as aligned text.
-pub trait DescriptionView {
-    /// One JSON object with every field (integers exact).
-    fn to_json(&self) -> Value;
-    /// Aligned `name  value` lines for a terminal.
-    fn to_text(&self) -> String;
-}
-
-impl DescriptionView for Description {
-    fn to_json(&self) -> Value {
-        let gamma = &self.canonical.gamma.m;
-        json!({
-            "input": json_form(&self.input),
-            "canonical": json_form(&self.canonical.form),
-            "gamma": [[json_int(&gamma[0]), json_int(&gamma[1])], [json_int(&gamma[2]), json_int(&gamma[3])]],
-            "I": json_int(&self.invariants.i),
-            "J": json_int(&self.invariants.j),
-            "disc": json_int(&self.invariants.disc),
-            "H4": json_int(&self.invariants.h4),
-            "H": height_decimal(&self.invariants.h4),
-            "real_roots": self.signature.real_roots(),
-            "signature": self.signature.name(),
-            "factorisation": self.pattern.name(),
-            "irreducible": self.pattern == FactorPattern::Irreducible,
-            "galois": self.galois.map(|g| g.name()),
-            "stabiliser_order": self.canonical.stabiliser.len(),
-            "stabiliser": self.canonical.stabiliser.iter().map(|g| {
-                Value::Array(g.m.iter().map(json_int).collect())
-            }).collect::<Vec<_>>(),
-            "disc_factors": self.factors_text(),
-            "els": self.local.as_deref().map(everywhere_soluble),
-            "insoluble_at": self.local.as_deref().map(|l| insoluble_places(l).map(ToString::to_string).collect::<Vec<_>>()),
-            "local": self.local.as_ref().map(|l| l.iter().map(|p| json!({
-                "place": p.place.to_string(),
-                "v_disc": p.v_disc,
-                "pattern": p.pattern,
-                "soluble": p.soluble,
-            })).collect::<Vec<_>>()),
-        })
-    }
-
-    fn to_text(&self) -> String {
-        let sig = match self.signature {
-            Signature::FourReal => "4 real roots".to_string(),
-            Signature::TwoReal => "2 real roots".to_string(),
-            Signature::PositiveDefinite => "0 real roots, positive definite".to_string(),
-            Signature::NegativeDefinite => "0 real roots, negative definite".to_string(),
-        };
-        let pattern = match self.pattern {
-            FactorPattern::Irreducible => "irreducible".to_string(),
-            p => format!("reducible, factor degrees {}", p.name()),
-        };
-        let stab: Vec<String> = self
-            .canonical
-            .stabiliser
+/// Rows in the chosen format (text ends with a count line).
+pub fn rows(rows: &[ClassRow], format: Format) -> String {
+    match format {
+        Format::Json => serde_json::to_string(rows).expect("rows serialise") + "\n",
+        Format::Jsonl => rows
             .iter()
-            .map(|g| g.to_string())
-            .collect();
-        let rows = [
-            ("input", self.input.to_string()),
-            ("canonical", self.canonical.form.to_string()),
-            (
-                "gamma",
-                format!("{}   (gamma . input = canonical)", self.canonical.gamma),
-            ),
-            ("I", self.invariants.i.to_string()),
-            ("J", self.invariants.j.to_string()),
-            (
-                "Disc",
-                match self.factors_text() {
-                    Some(t) => format!("{} = {t}", self.invariants.disc),
-                    None => format!(
-                        "{} (not factored within the time budget)",
-                        self.invariants.disc
-                    ),
-                },
-            ),
-            (
-                "H",
-                format!(
-                    "{}   (H4 = max(4|I|^3, J^2) = {})",
-                    height_decimal(&self.invariants.h4),
-                    self.invariants.h4
-                ),
-            ),
-            ("signature", sig),
-            ("over Q", pattern),
-            (
-                "Galois group",
-                self.galois.map(|g| g.name()).unwrap_or("-").to_string(),
-            ),
-            (
-                "stabiliser",
-                format!("order {} in PGL2(Z): {}", stab.len(), stab.join(", ")),
-            ),
-            (
-                "local",
-                match &self.local {
-                    None => "not computed: Disc could not be factored".to_string(),
-                    Some(l) if everywhere_soluble(l) => "everywhere locally soluble".to_string(),
-                    Some(l) => format!(
-                        "no local point at {}",
-                        insoluble_places(l)
-                            .map(ToString::to_string)
-                            .collect::<Vec<_>>()
-                            .join(", ")
-                    ),
-                },
-            ),
-        ];
-        let mut out: String = rows.iter().map(|(k, v)| format!("{k:<13}{v}\n")).collect();
-        for p in self.local.iter().flatten() {
-            let place = format!("p = {}", p.place);
-            let v = p
-                .v_disc
-                .map(|v| format!("v(Disc) = {v}, "))
-                .unwrap_or_default();
-            let what = if p.place != Place::Real {
-                "mod p"
-            } else {
-                "signature"
-            };
-            out.push_str(&format!(
-                "  {place:<11}{v}{what} {}, {}\n",
-                p.pattern,
-                if p.soluble { "soluble" } else { "NOT soluble" }
-            ));
+            .map(|r| serde_json::to_string(r).expect("rows serialise") + "\n")
+            .collect(),
+        Format::Csv => csv(&COLUMNS, rows.iter().map(fields)),
+        Format::Text => {
+            let table: Vec<Vec<String>> = rows.iter().map(fields).collect();
+            aligned(&COLUMNS, &table) + &count(rows.len(), "class", "classes") + "\n"
         }
-        out
     }
+}
+
+/// A form as its coefficients separated by spaces, as `qorbits reduce` takes them.
+pub fn form_text<T: std::fmt::Display>(c: &[T]) -> String {
+    c.iter()
+        .map(ToString::to_string)
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+fn matrix_json(g: &Gl2<Integer>) -> Value {
+    let [p, q, r, s] = &g.m;
+    Value::Array(vec![
+        Value::Array(vec![json::int(p), json::int(q)]),
+        Value::Array(vec![json::int(r), json::int(s)]),
+    ])
+}
+
+/// The description of a class as one JSON object (docs/output.md, `reduce`).
+pub fn description_json(d: &Description) -> Value {
+    let inv = &d.invariants;
+    let local = d.local.as_deref();
+    json::object(vec![
+        ("input", json::form(&d.input)),
+        ("form", json::form(&d.canonical.form)),
+        ("gamma", matrix_json(&d.canonical.gamma)),
+        ("I", json::int(&inv.i)),
+        ("J", json::int(&inv.j)),
+        ("disc", json::int(&inv.disc)),
+        (
+            "disc_factors",
+            d.disc_factors.as_deref().map_or(Value::Null, json::factors),
+        ),
+        ("H4", json::int(&inv.h4)),
+        ("H", json::height(&inv.h4, &height_decimal(&inv.h4))),
+        ("real_roots", Value::from(d.signature.real_roots())),
+        ("signature", Value::from(d.signature.name())),
+        ("factorisation", Value::from(d.pattern.name())),
+        (
+            "irreducible",
+            Value::from(d.pattern == FactorPattern::Irreducible),
+        ),
+        ("galois", d.galois.map(|g| g.name()).into()),
+        ("stabiliser", Value::from(d.canonical.stabiliser.len())),
+        (
+            "stabiliser_matrices",
+            Value::Array(d.canonical.stabiliser.iter().map(matrix_json).collect()),
+        ),
+        ("els", local.map(everywhere_soluble).into()),
+        (
+            "insoluble_at",
+            local.map_or(Value::Null, |l| {
+                Value::Array(
+                    insoluble_places(l)
+                        .map(|p| Value::String(p.to_string()))
+                        .collect(),
+                )
+            }),
+        ),
+        ("local", local.map_or(Value::Null, json::local)),
+    ])
+}
+
+/// The local data as an aligned table under `local` (any length of prime).
+fn local_table(places: &[LocalPlace<Integer>]) -> String {
+    let records: Vec<Vec<String>> = places
+        .iter()
+        .map(|l| {
+            vec![
+                l.place.to_string(),
+                l.v_disc.map(|v| v.to_string()).unwrap_or_default(),
+                l.pattern.clone(),
+                if l.soluble { "yes" } else { "no" }.to_string(),
+            ]
+        })
+        .collect();
+    let t = aligned(&["place", "v(Disc)", "mod p", "point"], &records);
+    t.lines().map(|l| format!("  {l}\n")).collect()
+}
+
+/// The description of a class as aligned `name  value` lines for a terminal.
+pub fn description_text(d: &Description) -> String {
+    let sig = match d.signature {
+        Signature::FourReal => "4 real roots".to_string(),
+        Signature::TwoReal => "2 real roots".to_string(),
+        Signature::PositiveDefinite => "0 real roots, positive definite".to_string(),
+        Signature::NegativeDefinite => "0 real roots, negative definite".to_string(),
+    };
+    let pattern = match d.pattern {
+        FactorPattern::Irreducible => "irreducible".to_string(),
+        p => format!("reducible, factor degrees {}", p.name()),
+    };
+    let stab: Vec<String> = d
+        .canonical
+        .stabiliser
+        .iter()
+        .map(|g| form_text(&g.m))
+        .collect();
+    let inv = &d.invariants;
+    let rows = [
+        ("input", form_text(&d.input.c)),
+        ("canonical", form_text(&d.canonical.form.c)),
+        (
+            "gamma",
+            format!(
+                "{}   (p q r s: canonical(x, y) = input(p x + r y, q x + s y))",
+                form_text(&d.canonical.gamma.m)
+            ),
+        ),
+        ("I", inv.i.to_string()),
+        ("J", inv.j.to_string()),
+        (
+            "Disc",
+            match d.factors_text() {
+                Some(t) => format!("{}   (|Disc| = {t})", inv.disc),
+                None => format!("{}   (not factored within the time budget)", inv.disc),
+            },
+        ),
+        (
+            "H",
+            format!(
+                "{}   (H4 = max(4|I|^3, J^2) = {})",
+                height_decimal(&inv.h4),
+                inv.h4
+            ),
+        ),
+        ("signature", sig),
+        ("over Q", pattern),
+        (
+            "Galois group",
+            d.galois.map(|g| g.name()).unwrap_or("-").to_string(),
+        ),
+        (
+            "stabiliser",
+            format!("order {} in PGL2(Z): {}", stab.len(), stab.join(" | ")),
+        ),
+        (
+            "local",
+            match &d.local {
+                None => "not computed: Disc could not be factored".to_string(),
+                Some(l) if everywhere_soluble(l) => "everywhere locally soluble".to_string(),
+                Some(l) => format!(
+                    "no local point at {}",
+                    insoluble_places(l)
+                        .map(ToString::to_string)
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ),
+            },
+        ),
+    ];
+    let mut out: String = rows.iter().map(|(k, v)| format!("{k:<13}{v}\n")).collect();
+    if let Some(l) = &d.local {
+        out += &local_table(l);
+    }
+    out
 }

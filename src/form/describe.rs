@@ -80,9 +80,8 @@ pub fn height_decimal(h4: &Integer) -> String {
 }
 
 impl Description {
-    /// The factorisation of Disc as text ([`factor_text`]), if Disc was factored.
+    /// The factorisation of |Disc| as text ([`factor_text`]), if Disc was factored.
     pub fn factors_text(&self) -> Option<String> {
-        let f = self.disc_factors.as_ref()?;
-        Some(factor_text(self.invariants.disc < 0, f))
+        Some(factor_text(self.disc_factors.as_ref()?))
     }
 }

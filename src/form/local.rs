@@ -43,6 +43,7 @@
 //! ```
 
 use crate::arith::fp::{self, with_field, Field};
+use crate::arith::primes::powers_text;
 use crate::form::{Form, Signature};
 use rug::ops::Pow;
 use rug::Integer;
@@ -163,10 +164,10 @@ fn pattern_in<F: Field>(fld: &F, f: &Form<Integer>) -> String {
     if c.iter().all(|x| fld.is_zero(x)) {
         return "0".into();
     }
-    let inf = c.iter().take_while(|x| fld.is_zero(x)).count();
+    let inf = c.iter().take_while(|x| fld.is_zero(x)).count() as u32;
     // f(x, 1) in ascending order: e + d x + c x² + b x³ + a x⁴.
     let mut g = fp::normalise(fld, c.into_iter().rev().collect());
-    let mut parts: Vec<(usize, usize)> = Vec::new();
+    let mut parts: Vec<(usize, u32)> = Vec::new();
     if inf > 0 {
         parts.push((1, inf));
     }
@@ -202,17 +203,7 @@ fn pattern_in<F: Field>(fld: &F, f: &Form<Integer>) -> String {
         _ => unreachable!("degree at most 4"),
     }
     parts.sort();
-    parts
-        .iter()
-        .map(|(d, m)| {
-            if *m == 1 {
-                d.to_string()
-            } else {
-                format!("{d}^{m}")
-            }
-        })
-        .collect::<Vec<_>>()
-        .join(" ")
+    powers_text(&parts)
 }
 
 /// The discriminant mod p of the quartic `g` (ascending), from the invariants of the binary

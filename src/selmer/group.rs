@@ -45,7 +45,7 @@ pub fn two_selmer(curve: &Curve) -> Result<Selmer> {
         return Err(Error::Numerical(format!(
             "the curve {} gave {} non-trivial Selmer elements, so the group would have order {size}, \
              not a power of 2; please report this curve",
-            curve.name(),
+            curve.equation(),
             elements.len()
         )));
     }

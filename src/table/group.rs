@@ -2,14 +2,16 @@
 //! grouping over Q and the factorisation of each pair's discriminant — everything that
 //! needs all classes of one pair, which are consecutive in table order (DESIGN §4, §7).
 //!
-//! Labels are `I.J.iN` for the N-th irreducible class with invariants (I, J) and `I.J.rN`
-//! for the N-th reducible one, counting in lexicographic order of the canonical forms. All
+//! Labels (schema/labels.md): `Q<I>_<J>_<N>` for the N-th irreducible class with
+//! invariants (I, J) and `R<I>_<J>_<N>` for the N-th reducible one, counting in
+//! lexicographic order of the canonical forms, N written with at least three digits. All
 //! classes with given (I, J) have the same height, so a label never depends on the height
 //! bound of the table, nor on whether reducible classes are included.
 //!
 //! ```
-//! use qorbits::table::group::label;
-//! assert_eq!(label(10, -29, true, 1), "10.-29.i1");
+//! use qorbits::table::group::{label, parse_label};
+//! assert_eq!(label(10, -29, true, 1), "Q10_-29_001");
+//! assert_eq!(parse_label("R-48_1404_012"), Some((-48, 1404, false, 12)));
 //! ```
 
 use crate::arith::primes::factor;
@@ -23,8 +25,33 @@ use rug::Integer;
 
 /// The label of the `n`-th (from 1) irreducible or reducible class of a pair.
 pub fn label(i: i64, j: i64, irreducible: bool, n: usize) -> String {
-    let tag = if irreducible { 'i' } else { 'r' };
-    format!("{i}.{j}.{tag}{n}")
+    let kind = if irreducible { 'Q' } else { 'R' };
+    format!("{kind}{i}_{j}_{n:03}")
+}
+
+/// `(I, J, irreducible, N)` of a label, or `None` when it is not one.
+pub fn parse_label(s: &str) -> Option<(i64, i64, bool, usize)> {
+    let irreducible = match s.as_bytes().first()? {
+        b'Q' => true,
+        b'R' => false,
+        _ => return None,
+    };
+    let mut parts = s[1..].split('_');
+    let int = |t: &str| -> Option<i64> {
+        let digits = t.strip_prefix('-').unwrap_or(t);
+        let canonical = !digits.is_empty()
+            && digits.bytes().all(|b| b.is_ascii_digit())
+            && (digits == "0" || !digits.starts_with('0'))
+            && t != "-0";
+        canonical.then(|| t.parse().ok()).flatten()
+    };
+    let (i, j) = (int(parts.next()?)?, int(parts.next()?)?);
+    let n = parts.next()?;
+    if parts.next().is_some() || n.len() < 3 || !n.bytes().all(|b| b.is_ascii_digit()) {
+        return None;
+    }
+    let n: usize = n.parse().ok()?;
+    (n >= 1 && label(i, j, irreducible, n) == s).then_some((i, j, irreducible, n))
 }
 
 /// Splits rows in table order into runs with the same (I, J).
@@ -114,4 +141,49 @@ fn classes_over_q(rows: &[ClassRow]) -> Result<Vec<Vec<usize>>> {
         out[c].push(k);
     }
     Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn labels_are_reversible_shell_safe_and_sort_within_a_pair() {
+        for (i, j, irr, n) in [
+            (10, -29, true, 1),
+            (-48, 1404, false, 13),
+            (0, 0, true, 999),
+            (7, -7, true, 1234),
+        ] {
+            let l = label(i, j, irr, n);
+            assert_eq!(parse_label(&l), Some((i, j, irr, n)), "{l}");
+            assert!(
+                l.bytes()
+                    .all(|b| b.is_ascii_alphanumeric() || b == b'_' || b == b'-'),
+                "{l}"
+            );
+            assert!(!l.starts_with('-'), "{l} would read as an option");
+        }
+        let mut within: Vec<String> = (1..=999).map(|n| label(3, -27, true, n)).collect();
+        let want = within.clone();
+        within.sort();
+        assert_eq!(within, want, "labels of a pair sort in N order");
+        assert!(
+            label(3, -27, true, 999) < label(3, -27, false, 1),
+            "irreducible first"
+        );
+        for bad in [
+            "",
+            "Q1_2",
+            "Q1_2_3",
+            "Q01_2_001",
+            "Q1_2_000",
+            "X1_2_001",
+            "Q1_2_001_4",
+            "Q-0_2_001",
+            "Q1_+2_001",
+        ] {
+            assert_eq!(parse_label(bad), None, "{bad}");
+        }
+    }
 }

@@ -103,7 +103,7 @@ pub fn default_manifest_path(db: &Path) -> PathBuf {
 /// The shell recipe for the content hash of `file_name`.
 pub fn content_recipe(file_name: &str) -> String {
     format!(
-        "sqlite3 -batch -noheader -list -separator '|' {file_name} \"{CONTENT_SQL}\" | sha256sum"
+        "sqlite3 -batch -init /dev/null -noheader -list -separator '|' {file_name} \"{CONTENT_SQL}\" | sha256sum"
     )
 }
 
@@ -268,29 +268,39 @@ fn check(name: &str, want: impl std::fmt::Display, got: impl std::fmt::Display) 
     }
 }
 
-/// Check a table against a manifest: file hash, schema version, content hash and counts.
-/// A file that cannot be opened yields failed checks, not an error.
-pub fn verify(db: &Path, m: &Manifest) -> Vec<Check> {
+/// Check a table against a manifest: file hash, schema version (read from the file),
+/// content hash and counts. A file that is damaged or not a table yields failed checks; a
+/// missing file is an error.
+pub fn verify(db: &Path, m: &Manifest) -> Result<Vec<Check>> {
+    if std::fs::symlink_metadata(db).is_err() {
+        return Err(Error::Io(format!(
+            "no table at {}: the file does not exist; check the path",
+            db.display()
+        )));
+    }
+    let failed = |name: &str, detail: String| Check {
+        name: name.into(),
+        ok: false,
+        detail,
+    };
     let mut out = Vec::new();
     match file_sha256(db) {
         Ok(h) => out.push(check("file sha256", &m.file.sha256, h)),
         Err(e) => {
-            out.push(Check {
-                name: "file sha256".into(),
-                ok: false,
-                detail: e.to_string(),
-            });
-            return out;
+            out.push(failed("file sha256", e.to_string()));
+            return Ok(out);
         }
     }
     if m.format != FORMAT {
-        out.push(Check {
-            name: "manifest format".into(),
-            ok: false,
-            detail: format!("unknown format {}", m.format),
-        });
+        out.push(failed(
+            "manifest format",
+            format!("unknown format {}", m.format),
+        ));
     }
-    out.push(check("schema version", m.versions.schema, SCHEMA_VERSION));
+    match file_schema_version(db) {
+        Ok(v) => out.push(check("schema version", m.versions.schema, v)),
+        Err(e) => out.push(failed("schema version", e.to_string())),
+    }
     match manifest_for(db) {
         Ok(got) => {
             out.push(check(
@@ -327,13 +337,31 @@ pub fn verify(db: &Path, m: &Manifest) -> Vec<Check> {
                 ));
             }
         }
-        Err(e) => out.push(Check {
-            name: "table".into(),
-            ok: false,
-            detail: e.to_string(),
-        }),
+        Err(e) => out.push(failed("table", e.to_string())),
     }
-    out
+    Ok(out)
+}
+
+/// The schema version a file declares (`PRAGMA user_version`), if it is a qorbits table of
+/// any version.
+fn file_schema_version(db: &Path) -> Result<i64> {
+    let shown = db.display();
+    let not_sqlite = |e: rusqlite::Error| {
+        Error::Database(format!("{shown} is not a readable SQLite file ({e})"))
+    };
+    let conn = rusqlite::Connection::open_with_flags(
+        db,
+        rusqlite::OpenFlags::SQLITE_OPEN_READ_ONLY | rusqlite::OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .map_err(not_sqlite)?;
+    let app: i32 = conn
+        .query_row("PRAGMA application_id", [], |r| r.get(0))
+        .map_err(not_sqlite)?;
+    if app != crate::table::schema::APPLICATION_ID {
+        return Err(Error::Database(format!("{shown} is not a qorbits table")));
+    }
+    conn.query_row("PRAGMA user_version", [], |r| r.get(0))
+        .map_err(not_sqlite)
 }
 
 /// Rebuilds the table a manifest describes and checks the result against it, on the
@@ -345,7 +373,7 @@ pub fn rebuild_and_compare(manifest: &Path, progress: &dyn Progress) -> Result<V
     let dir = fresh_temp_dir("rebuild")?;
     let out = dir.join("rebuild.sqlite");
     let result = crate::table::pipeline::build(&m.parameters, &out, false, progress)
-        .map(|_| verify(&out, &m));
+        .and_then(|_| verify(&out, &m));
     let _ = std::fs::remove_dir_all(&dir);
     result
 }

@@ -2,13 +2,14 @@
 //! ([`classify`]), the grouping into labelled pairs ([`group`]), the pipeline and the build
 //! ([`pipeline`]), the storage contract ([`schema`]), the writer ([`writer`]) with its
 //! atomic files ([`atomic`]), the reader ([`reader`]), the hashes ([`hash`]), manifests and
-//! verification ([`manifest`]), queries by invariants ([`query`]) and counts against the
+//! verification ([`manifest`]), the JSON number rule ([`json`]), queries by invariants ([`query`]) and counts against the
 //! asymptotic main terms ([`stats`]).
 
 pub mod atomic;
 pub mod classify;
 pub mod group;
 pub mod hash;
+pub mod json;
 pub mod manifest;
 pub mod pipeline;
 pub mod query;

@@ -150,7 +150,7 @@ mod tests {
     use crate::progress::Silent;
 
     #[test]
-    fn the_search_by_invariants_gives_the_pairs_of_the_bulk_table() {
+    fn pairs_are_ordered_consistent_and_found_again_by_the_search() {
         let params = Params {
             height: 20_000,
             include_reducible: true,
@@ -162,15 +162,6 @@ mod tests {
                 .unwrap();
             assert_eq!(&got, pair, "({}, {})", pair.i, pair.j);
         }
-    }
-
-    #[test]
-    fn pairs_are_in_table_order_with_consistent_aggregates() {
-        let params = Params {
-            height: 20_000,
-            include_reducible: false,
-        };
-        let t = enumerate_classes(&params, &Silent).unwrap();
         let keys: Vec<_> = t.rows().map(ClassRow::key).collect();
         assert!(keys.windows(2).all(|w| w[0] < w[1]));
         for p in &t.pairs {

@@ -132,6 +132,11 @@ impl Query {
         Ok(())
     }
 
+    /// Whether the table at `db` covers this query (opening and checking the table).
+    pub fn coverage(&self, db: &Path) -> Result<std::result::Result<(), NotCovered>> {
+        Ok(self.covered_by(&table_params(&open_table(db)?)?))
+    }
+
     /// The rows of `pair` this query keeps.
     pub fn filter(&self, pair: &Pair) -> Vec<ClassRow> {
         let firsts: Vec<usize> = pair.over_q.iter().map(|c| c[0]).collect();

@@ -97,6 +97,13 @@ pub fn open_table(path: &Path) -> Result<Connection> {
     Ok(conn)
 }
 
+/// The classes of the pair (I, J) = (?1, ?2): found through the index of `pairs`, read as a
+/// range of ids (the classes of a pair are consecutive in row order).
+pub const PAIR_CLASSES_SQL: &str = "SELECT id, label, a, b, c, d, e, I, J, disc, h4, real_roots, \
+     signature, factorisation, irreducible, galois, stabiliser, rational_class FROM classes \
+     WHERE id BETWEEN (SELECT first_id FROM pairs WHERE I = ?1 AND J = ?2) \
+     AND (SELECT first_id + classes - 1 FROM pairs WHERE I = ?1 AND J = ?2) ORDER BY id";
+
 /// Every row of a query, mapped by `f`, with one-line errors.
 fn query_all<T, P: rusqlite::Params>(
     conn: &Connection,
@@ -158,7 +165,7 @@ struct StoredClass {
     irreducible: i64,
     galois: Option<String>,
     stabiliser: i64,
-    rational: Option<String>,
+    rational: Option<i64>,
 }
 
 impl StoredClass {
@@ -220,7 +227,7 @@ impl StoredClass {
             galois,
             stabiliser,
             label: self.label,
-            rational: self.rational,
+            rational: None,
             local,
         })
     }
@@ -230,50 +237,54 @@ impl StoredClass {
 /// is not in it), in table order, with the grouping over Q read back from `rational_class`
 /// (uses the (I, J) index).
 pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
-    let stored = query_all(
-        conn,
-        "SELECT id, label, a, b, c, d, e, I, J, disc, h4, real_roots, signature, factorisation, \
-         irreducible, galois, stabiliser, rational_class FROM classes WHERE I = ?1 AND J = ?2 ORDER BY id",
-        [i, j],
-        |r| {
-            let mut ints = [0i64; 9];
-            for (k, v) in ints.iter_mut().enumerate() {
-                *v = r.get(k + 2)?;
-            }
-            Ok(StoredClass {
-                id: r.get(0)?,
-                label: r.get(1)?,
-                ints,
-                real_roots: r.get(11)?,
-                signature: r.get(12)?,
-                factorisation: r.get(13)?,
-                irreducible: r.get(14)?,
-                galois: r.get(15)?,
-                stabiliser: r.get(16)?,
-                rational: r.get(17)?,
-            })
-        },
-    )?;
-    let classes = stored
-        .into_iter()
-        .map(|s| s.into_class_row(conn))
-        .collect::<Result<Vec<_>>>()?;
+    let stored = query_all(conn, PAIR_CLASSES_SQL, [i, j], |r| {
+        let mut ints = [0i64; 9];
+        for (k, v) in ints.iter_mut().enumerate() {
+            *v = r.get(k + 2)?;
+        }
+        Ok(StoredClass {
+            id: r.get(0)?,
+            label: r.get(1)?,
+            ints,
+            real_roots: r.get(11)?,
+            signature: r.get(12)?,
+            factorisation: r.get(13)?,
+            irreducible: r.get(14)?,
+            galois: r.get(15)?,
+            stabiliser: r.get(16)?,
+            rational: r.get(17)?,
+        })
+    })?;
     let damaged = || {
         Error::Database(format!(
             "{}: the pair ({i}, {j}) is inconsistent; the table is damaged",
             shown(conn)
         ))
     };
+    let ids: Vec<i64> = stored.iter().map(|s| s.id).collect();
+    let firsts: Vec<Option<i64>> = stored.iter().map(|s| s.rational).collect();
+    let mut classes = stored
+        .into_iter()
+        .map(|s| s.into_class_row(conn))
+        .collect::<Result<Vec<_>>>()?;
     let inv = invariants_from_ij(i128::from(i), i128::from(j)).ok_or_else(damaged)?;
     let disc = i64::try_from(inv.disc).map_err(|_| damaged())?;
     let h4 = i64::try_from(inv.h4).map_err(|_| damaged())?;
+    // rational_class holds the id of the first class of the class over Q, in this pair.
     let mut over_q: Vec<Vec<usize>> = Vec::new();
-    for (k, r) in classes.iter().enumerate() {
-        let Some(first) = &r.rational else { continue };
-        match over_q.iter_mut().find(|c| classes[c[0]].label == *first) {
+    for (k, first) in firsts.iter().enumerate() {
+        let Some(first) = first else { continue };
+        let at = ids.iter().position(|id| id == first).ok_or_else(damaged)?;
+        match over_q.iter_mut().find(|c| c[0] == at) {
             Some(c) => c.push(k),
-            None if r.label == *first => over_q.push(vec![k]),
+            None if at == k => over_q.push(vec![k]),
             None => return Err(damaged()),
+        }
+    }
+    for class in &over_q {
+        let label = classes[class[0]].label.clone();
+        for &k in class {
+            classes[k].rational = Some(label.clone());
         }
     }
     let disc_factors = if classes.is_empty() {
@@ -284,7 +295,7 @@ pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
     } else {
         query_all(
             conn,
-            "SELECT p, e FROM pair_primes WHERE I = ?1 AND J = ?2 ORDER BY p",
+            "SELECT p, e FROM pair_primes WHERE pair_id = (SELECT id FROM pairs WHERE I = ?1 AND J = ?2) ORDER BY p",
             [i, j],
             |r| Ok((r.get(0)?, r.get(1)?)),
         )?

@@ -8,11 +8,14 @@
 //! assert_eq!(serde_json::to_string(&p).unwrap(), r#"{"height":1000000,"include_reducible":false}"#);
 //! ```
 
+use crate::form::describe::height_decimal;
 use crate::form::galois::{FactorPattern, GaloisGroup};
-use crate::form::local::{everywhere_soluble, insoluble_places, LocalPlace};
-use crate::form::Signature;
-use serde::ser::SerializeStruct;
+use crate::form::local::{everywhere_soluble, insoluble_places, LocalPlace, Place};
+use crate::form::{Form, Signature};
+use crate::table::json;
+use rug::Integer;
 use serde::{Deserialize, Serialize, Serializer};
+use serde_json::Value;
 
 /// What a table is built from (also the `parameters` of its manifest).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -106,46 +109,51 @@ impl ClassRow {
     }
 }
 
-/// The JSON object of a class (integers as numbers).
+impl ClassRow {
+    /// The factorisation of |Disc|, read off the local data (the primes with v_p(Disc) > 0).
+    pub fn disc_factors(&self) -> Vec<(i64, u32)> {
+        self.local
+            .iter()
+            .filter_map(|l| match (&l.place, l.v_disc) {
+                (Place::Prime(p), Some(v)) if v > 0 => Some((*p, v)),
+                _ => None,
+            })
+            .collect()
+    }
+
+    /// H = H4/4 exactly in decimal.
+    pub fn height(&self) -> String {
+        height_decimal(&Integer::from(self.h4))
+    }
+}
+
+/// The JSON object of a class under the output contract (docs/output.md).
 impl Serialize for ClassRow {
     fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        #[derive(Serialize)]
-        struct Place<'a> {
-            place: String,
-            v_disc: Option<u32>,
-            pattern: &'a str,
-            soluble: bool,
-        }
-        let mut o = s.serialize_struct("class", 15)?;
-        o.serialize_field("label", &self.label)?;
-        o.serialize_field("canonical", &self.form)?;
-        o.serialize_field("I", &self.i)?;
-        o.serialize_field("J", &self.j)?;
-        o.serialize_field("disc", &self.disc)?;
-        o.serialize_field("H4", &self.h4)?;
-        o.serialize_field("real_roots", &self.signature.real_roots())?;
-        o.serialize_field("signature", self.signature.name())?;
-        o.serialize_field("factorisation", self.pattern.name())?;
-        o.serialize_field("galois", &self.galois.map(GaloisGroup::name))?;
-        o.serialize_field("stabiliser_order", &self.stabiliser)?;
-        o.serialize_field("els", &self.els())?;
-        let insoluble: Vec<String> = insoluble_places(&self.local)
-            .map(ToString::to_string)
+        let insoluble: Vec<Value> = insoluble_places(&self.local)
+            .map(|p| Value::String(p.to_string()))
             .collect();
-        o.serialize_field("insoluble_at", &insoluble)?;
-        o.serialize_field("rational_class", &self.rational)?;
-        let local: Vec<Place> = self
-            .local
-            .iter()
-            .map(|l| Place {
-                place: l.place.to_string(),
-                v_disc: l.v_disc,
-                pattern: &l.pattern,
-                soluble: l.soluble,
-            })
-            .collect();
-        o.serialize_field("local", &local)?;
-        o.end()
+        json::object(vec![
+            ("label", Value::String(self.label.clone())),
+            ("form", json::form(&Form::<Integer>::from_i64(self.form))),
+            ("I", json::small(self.i)),
+            ("J", json::small(self.j)),
+            ("disc", json::small(self.disc)),
+            ("disc_factors", json::factors(&self.disc_factors())),
+            ("H4", json::small(self.h4)),
+            ("H", json::height(&Integer::from(self.h4), &self.height())),
+            ("real_roots", Value::from(self.signature.real_roots())),
+            ("signature", Value::from(self.signature.name())),
+            ("factorisation", Value::from(self.pattern.name())),
+            ("irreducible", Value::from(self.irreducible())),
+            ("galois", self.galois.map(GaloisGroup::name).into()),
+            ("stabiliser", Value::from(self.stabiliser)),
+            ("els", Value::from(self.els())),
+            ("insoluble_at", Value::Array(insoluble)),
+            ("rational_class", self.rational.clone().into()),
+            ("local", json::local(&self.local)),
+        ])
+        .serialize(s)
     }
 }
 

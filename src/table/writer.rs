@@ -1,5 +1,11 @@
-//! The table writer: a [`Table`] in memory into one SQLite file, byte-reproducible and
-//! atomic (DESIGN §5). It only writes: every value comes computed from the pipeline.
+//! The table writer: pairs in table order into one SQLite file, streamed, byte-reproducible
+//! and atomic (DESIGN §5). It only writes: every value comes computed from the pipeline.
+//!
+//! The bytes depend only on the pairs pushed: fixed page size and pragmas, one transaction,
+//! rows inserted pair by pair in row order (each pair's classes, their local data, the pair
+//! and its primes), indexes after the data, no timestamps. The file is built beside its
+//! target under a temporary name, flushed to disk and renamed, so the target never holds a
+//! partial table. Memory does not grow with the table.
 //!
 //! ```
 //! use qorbits::progress::Silent;
@@ -25,40 +31,114 @@ use crate::arith::primes::factor_text;
 use crate::error::{Error, Result};
 use crate::form::galois::GaloisGroup;
 use crate::table::atomic::TempFile;
-use crate::table::row::{ClassRow, Table};
+use crate::table::group::label;
+use crate::table::row::{ClassRow, Pair, Params, Table};
 use crate::table::schema::{
     place_to_column, APPLICATION_ID, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_SQL,
     SCHEMA_VERSION,
 };
-use rug::Integer;
 use rusqlite::{params, Connection, ErrorCode, OpenFlags};
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
-/// The rows must be what [`crate::table::pipeline::enumerate_classes`] returns.
-fn check_rows(table: &Table) -> Result<()> {
-    let params = &table.params;
-    let bound = 4 * params.height;
-    let mut previous: Option<&ClassRow> = None;
-    for (n, r) in table.rows().enumerate() {
+/// A table being written. Push the pairs in table order, then [`TableWriter::finish`]; a
+/// writer dropped before that leaves nothing behind.
+pub struct TableWriter {
+    target: PathBuf,
+    replace: bool,
+    params: Params,
+    tmp: TempFile,
+    conn: Connection,
+    classes: i64,
+    pairs: i64,
+    last: Option<(i64, i64, i64, [i64; 5])>,
+}
+
+/// How many rows [`TableWriter::finish`] wrote.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Written {
+    /// Rows of `classes`.
+    pub classes: u64,
+    /// Rows of `pairs`.
+    pub pairs: u64,
+}
+
+impl TableWriter {
+    /// Starts the table of `params` at `path`; an existing `path` is refused
+    /// ([`Error::Exists`]) unless `replace`.
+    pub fn create(path: &Path, params: &Params, replace: bool) -> Result<TableWriter> {
+        let tmp = TempFile::create(path, replace)?;
+        let conn = open_new(tmp.path(), params).map_err(|e| write_error(path, e))?;
+        Ok(TableWriter {
+            target: path.to_path_buf(),
+            replace,
+            params: *params,
+            tmp,
+            conn,
+            classes: 0,
+            pairs: 0,
+            last: None,
+        })
+    }
+
+    /// Appends one pair (labelled and grouped, as [`crate::table::group`] makes it); pairs
+    /// must come in table order.
+    pub fn push(&mut self, pair: &Pair) -> Result<()> {
+        let (mut ni, mut nr) = (0, 0);
+        for r in &pair.classes {
+            self.check(r)?;
+            let n = if r.irreducible() {
+                ni += 1;
+                ni
+            } else {
+                nr += 1;
+                nr
+            };
+            if (r.i, r.j) != (pair.i, pair.j) || r.label != label(r.i, r.j, r.irreducible(), n) {
+                return Err(Error::Input(format!(
+                    "cannot write the table: row {} ({}) does not have the label of its place in \
+                     its pair; group rows with table::group",
+                    self.classes + 1,
+                    r.label
+                )));
+            }
+        }
+        self.insert(pair).map_err(|e| write_error(&self.target, e))
+    }
+
+    /// Builds the indexes, commits, flushes and renames the file into place.
+    pub fn finish(self) -> Result<Written> {
+        let target = self.target.clone();
+        let written = Written {
+            classes: self.classes as u64,
+            pairs: self.pairs as u64,
+        };
+        (|| {
+            self.conn.execute_batch(INDEX_SQL)?;
+            self.conn.execute_batch("COMMIT")?;
+            self.conn.close().map_err(|(_, e)| e)
+        })()
+        .map_err(|e| write_error(&target, e))?;
+        self.tmp.commit(&target, self.replace)?;
+        Ok(written)
+    }
+
+    /// The rows must be what the pipeline makes for these parameters.
+    fn check(&mut self, r: &ClassRow) -> Result<()> {
         let bad = |why: &str| {
             Error::Input(format!(
                 "cannot write the table: row {} ({}) {why}",
-                n + 1,
+                self.classes + 1,
                 r.label
             ))
         };
         if r.label.is_empty() {
-            return Err(bad(
-                "has no label; group rows with table::group::group_rows",
-            ));
+            return Err(bad("has no label; group rows with table::group"));
         }
-        if previous.is_some_and(|p| p.key() >= r.key()) {
-            return Err(bad(
-                "is out of table order; group rows with table::group::group_rows",
-            ));
+        if self.last.is_some_and(|k| k >= r.key()) {
+            return Err(bad("is out of table order; group rows with table::group"));
         }
-        previous = Some(r);
-        if i128::from(r.h4) >= bound {
+        self.last = Some(r.key());
+        if i128::from(r.h4) >= 4 * self.params.height {
             return Err(bad("is not below the height bound of the parameters"));
         }
         if r.irreducible() != r.galois.is_some() {
@@ -66,62 +146,36 @@ fn check_rows(table: &Table) -> Result<()> {
         }
         if r.rational.is_some() != r.grouped_over_q() {
             return Err(bad(
-                "has a class over Q exactly when it is not an els class without a rational root; \
-                 group rows with table::group::group_rows",
+                "has a class over Q exactly when it is not an els class without a rational root",
             ));
         }
-        if !r.irreducible() && !params.include_reducible {
+        if !r.irreducible() && !self.params.include_reducible {
             return Err(bad(
                 "is reducible but the parameters exclude reducible classes",
             ));
         }
+        Ok(())
     }
-    Ok(())
-}
 
-/// Builds the whole database in the (empty) file `tmp`.
-/// Builds the whole database in the (empty) file `tmp`.
-fn fill(tmp: &Path, table: &Table) -> rusqlite::Result<()> {
-    let params = &table.params;
-    let mut conn = Connection::open_with_flags(
-        tmp,
-        OpenFlags::SQLITE_OPEN_READ_WRITE | OpenFlags::SQLITE_OPEN_NO_MUTEX,
-    )?;
-    // Everything that shapes the file is fixed here rather than left to defaults.
-    conn.pragma_update(None, "page_size", PAGE_SIZE)?;
-    conn.pragma_update(None, "encoding", "UTF-8")?;
-    conn.pragma_update(None, "auto_vacuum", "NONE")?;
-    let mode: String = conn.pragma_update_and_check(None, "journal_mode", "OFF", |r| r.get(0))?;
-    if !mode.eq_ignore_ascii_case("off") {
-        return Err(rusqlite::Error::InvalidQuery);
-    }
-    conn.pragma_update(None, "synchronous", "OFF")?;
-    conn.pragma_update(None, "cache_size", -65536)?;
-    let tx = conn.transaction()?;
-    tx.pragma_update(None, "application_id", APPLICATION_ID)?;
-    tx.pragma_update(None, "user_version", SCHEMA_VERSION)?;
-    tx.execute_batch(SCHEMA_SQL)?;
-    {
-        let mut meta = tx.prepare("INSERT INTO meta (key, value) VALUES (?1, ?2)")?;
-        let include = if params.include_reducible { "1" } else { "0" };
-        for (k, v) in [
-            ("builder_version", env!("CARGO_PKG_VERSION").to_string()),
-            ("schema_version", SCHEMA_VERSION.to_string()),
-            ("height", params.height.to_string()),
-            ("include_reducible", include.to_string()),
-            ("ordering", ORDERING.to_string()),
-            ("label_rule", LABEL_RULE.to_string()),
-        ] {
-            meta.execute(params![k, v])?;
+    fn insert(&mut self, pair: &Pair) -> rusqlite::Result<()> {
+        let first_id = self.classes + 1;
+        let mut first_of = vec![None; pair.classes.len()];
+        for class in &pair.over_q {
+            for &k in class {
+                first_of[k] = Some(first_id + class[0] as i64);
+            }
         }
-        let mut ins = tx.prepare(
-            "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19, ?20)",
+        let conn = &self.conn;
+        let mut ins = conn.prepare_cached(
+            "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, \
+             ?14, ?15, ?16, ?17, ?18, ?19, ?20)",
         )?;
-        let mut loc = tx.prepare("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?;
-        for (n, r) in table.rows().enumerate() {
+        let mut loc = conn.prepare_cached("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?;
+        for (k, r) in pair.classes.iter().enumerate() {
+            let id = first_id + k as i64;
             let [a, b, c, d, e] = r.form;
             ins.execute(params![
-                n as i64 + 1,
+                id,
                 r.label,
                 a,
                 b,
@@ -140,60 +194,106 @@ fn fill(tmp: &Path, table: &Table) -> rusqlite::Result<()> {
                 r.stabiliser,
                 r.els(),
                 r.insoluble_at(),
-                r.rational,
+                first_of[k],
             ])?;
-            for l in &r.local {
+            // In key order (class_id, p): the real place (p = 0) first.
+            let mut places: Vec<_> = r.local.iter().collect();
+            places.sort_by_key(|l| place_to_column(&l.place));
+            for l in places {
                 let p = place_to_column(&l.place);
-                loc.execute(params![n as i64 + 1, p, l.v_disc, l.pattern, l.soluble])?;
+                loc.execute(params![id, p, l.v_disc, l.pattern, l.soluble])?;
             }
         }
-        let mut ins =
-            tx.prepare("INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)")?;
-        let mut pp = tx.prepare("INSERT INTO pair_primes VALUES (?1, ?2, ?3, ?4)")?;
-        for p in &table.pairs {
-            let factors: Vec<(Integer, u32)> = p
-                .disc_factors
-                .iter()
-                .map(|&(q, e)| (Integer::from(q), e))
-                .collect();
-            let (classes, irreducible) = (p.classes.len() as i64, p.irreducible() as i64);
-            ins.execute(params![
-                p.i,
-                p.j,
-                p.disc,
-                factor_text(p.disc < 0, &factors),
-                p.h4,
-                classes,
-                irreducible,
-                params.include_reducible.then_some(classes - irreducible),
-                p.els() as i64,
-                p.over_q.len() as i64,
-            ])?;
-            for (q, e) in &p.disc_factors {
-                pp.execute(params![p.i, p.j, q, e])?;
-            }
+        self.classes += pair.classes.len() as i64;
+        self.pairs += 1;
+        let (classes, irreducible) = (pair.classes.len() as i64, pair.irreducible() as i64);
+        conn.prepare_cached(
+            "INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12)",
+        )?
+        .execute(params![
+            self.pairs,
+            first_id,
+            pair.i,
+            pair.j,
+            pair.disc,
+            factor_text(&pair.disc_factors),
+            pair.h4,
+            classes,
+            irreducible,
+            self.params
+                .include_reducible
+                .then_some(classes - irreducible),
+            pair.els() as i64,
+            pair.over_q.len() as i64,
+        ])?;
+        let mut pp = conn.prepare_cached("INSERT INTO pair_primes VALUES (?1, ?2, ?3)")?;
+        for (q, e) in &pair.disc_factors {
+            pp.execute(params![self.pairs, q, e])?;
         }
+        Ok(())
     }
-    tx.execute_batch(INDEX_SQL)?;
-    tx.commit()?;
-    conn.close().map_err(|(_, e)| e)
 }
 
-/// Writes `table` (as returned by [`crate::table::pipeline::enumerate_classes`]) to `path`.
-///
-/// The same rows give the same bytes: fixed page size and pragmas, one transaction, inserts
-/// in row order, indexes after the data, no timestamps. The file is built beside `path`
-/// under a temporary name, flushed to disk and renamed, so `path` never holds a partial
-/// table. An existing `path` is refused ([`Error::Exists`]) unless `replace`.
-pub fn write_table(path: &Path, table: &Table, replace: bool) -> Result<()> {
-    check_rows(table)?;
-    let tmp = TempFile::create(path, replace)?;
-    fill(tmp.path(), table).map_err(|e| match e.sqlite_error_code() {
+/// Creates the database in the (empty) file `tmp`: settings, schema, `meta`, and an open
+/// transaction.
+fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
+    let conn = Connection::open_with_flags(
+        tmp,
+        OpenFlags::SQLITE_OPEN_READ_WRITE | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )?;
+    // Everything that shapes the file is fixed here rather than left to defaults.
+    conn.pragma_update(None, "page_size", PAGE_SIZE)?;
+    conn.pragma_update(None, "encoding", "UTF-8")?;
+    conn.pragma_update(None, "auto_vacuum", "NONE")?;
+    let mode: String = conn.pragma_update_and_check(None, "journal_mode", "OFF", |r| r.get(0))?;
+    if !mode.eq_ignore_ascii_case("off") {
+        return Err(rusqlite::Error::InvalidQuery);
+    }
+    conn.pragma_update(None, "synchronous", "OFF")?;
+    conn.pragma_update(None, "cache_size", -65536)?;
+    conn.pragma_update(None, "temp_store", "FILE")?;
+    conn.execute_batch("BEGIN")?;
+    conn.pragma_update(None, "application_id", APPLICATION_ID)?;
+    conn.pragma_update(None, "user_version", SCHEMA_VERSION)?;
+    conn.execute_batch(SCHEMA_SQL)?;
+    {
+        let mut meta = conn.prepare("INSERT INTO meta (key, value) VALUES (?1, ?2)")?;
+        let include = if params.include_reducible { "1" } else { "0" };
+        for (k, v) in [
+            ("builder_version", env!("CARGO_PKG_VERSION").to_string()),
+            ("height", params.height.to_string()),
+            ("include_reducible", include.to_string()),
+            ("label_rule", LABEL_RULE.to_string()),
+            ("ordering", ORDERING.to_string()),
+            ("schema_version", SCHEMA_VERSION.to_string()),
+        ] {
+            meta.execute(params![k, v])?;
+        }
+    }
+    Ok(conn)
+}
+
+/// A one-line error for a failed write.
+fn write_error(path: &Path, e: rusqlite::Error) -> Error {
+    match e.sqlite_error_code() {
         Some(ErrorCode::ConstraintViolation) => Error::Input(format!(
             "cannot write {}: the rows break a key of the table ({e}); labels must be unique",
             path.display()
         )),
+        Some(ErrorCode::DiskFull) => Error::Io(format!(
+            "cannot write {}: the disk is full; free space or choose another output directory",
+            path.display()
+        )),
         _ => Error::Io(format!("cannot write {}: {e}", path.display())),
-    })?;
-    tmp.commit(path, replace)
+    }
+}
+
+/// Writes `table` (as returned by [`crate::table::pipeline::enumerate_classes`]) to `path`;
+/// an existing `path` is refused ([`Error::Exists`]) unless `replace`.
+pub fn write_table(path: &Path, table: &Table, replace: bool) -> Result<Written> {
+    let mut w = TableWriter::create(path, &table.params, replace)?;
+    for pair in &table.pairs {
+        w.push(pair)?;
+    }
+    w.finish()
 }

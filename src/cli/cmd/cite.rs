@@ -1,0 +1,207 @@
+//! `qorbits cite`: a BibTeX entry and a CITATION.cff file for a table, naming its content
+//! hash.
+
+use crate::out::emit;
+use qorbits::error::Error;
+use qorbits::table::hash::content_sha256;
+use qorbits::table::reader::{open_table, table_params};
+use qorbits::table::row::Params;
+use qorbits::table::schema::SCHEMA_VERSION;
+use std::path::{Path, PathBuf};
+
+/// Print a BibTeX entry and a CITATION.cff file for a table.
+#[derive(clap::Args, Debug)]
+#[command(
+    after_help = "Example:\n  qorbits cite --db qorbits-h1e6.sqlite --url https://example.org/qorbits-h1e6 --format bibtex"
+)]
+pub struct Args {
+    /// The table (SQLite file).
+    #[arg(long, value_name = "TABLE")]
+    db: PathBuf,
+    /// Where the dataset is published: a URL, or a DOI (10.xxxx/…).
+    #[arg(long, value_name = "URL_OR_DOI")]
+    url: Option<String>,
+    /// Which citation to print.
+    #[arg(long, value_enum, default_value = "both")]
+    format: CiteFormat,
+    /// The year of the citation (default: the current year).
+    #[arg(long, allow_hyphen_values = true)]
+    year: Option<String>,
+}
+
+/// The citation formats.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CiteFormat {
+    /// A BibTeX entry.
+    Bibtex,
+    /// A CITATION.cff file (Citation File Format 1.2.0).
+    Cff,
+    /// Both, BibTeX first.
+    Both,
+}
+
+/// The parameters in words.
+pub fn describe_params(p: &Params, classes: u64) -> String {
+    let kind = if p.include_reducible {
+        "integral binary quartic forms with non-zero discriminant (reducible ones included)"
+    } else {
+        "irreducible integral binary quartic forms"
+    };
+    format!(
+        "every GL2(Z)-class of {kind} a x^4 + b x^3 y + c x^2 y^2 + d x y^3 + e y^4 with height \
+         H = max(|I|^3, J^2/4) below {}, one canonical representative each, with invariants, \
+         discriminant, factorisation, Galois group, stabiliser and local data ({classes} classes)",
+        p.height
+    )
+}
+
+fn this_year() -> i64 {
+    let secs = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.as_secs() as i64);
+    // Days since 1970-01-01 to a civil year (proleptic Gregorian; common practice).
+    let days = secs.div_euclid(86_400);
+    let z = days + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let month = if mp < 10 { mp + 3 } else { mp - 9 };
+    yoe + era * 400 + i64::from(month <= 2)
+}
+
+pub fn run(a: Args) -> Result<(), Error> {
+    let conn = open_table(&a.db)?;
+    let params = table_params(&conn)?;
+    let hash = content_sha256(&conn)?;
+    let classes: i64 = conn
+        .query_row("SELECT count(*) FROM classes", [], |r| r.get(0))
+        .map_err(Error::from)?;
+    let year = match &a.year {
+        Some(y) => y
+            .trim()
+            .parse::<i64>()
+            .ok()
+            .filter(|y| (1900..=9999).contains(y))
+            .ok_or_else(|| Error::Input(format!("--year '{y}' is not a year; write e.g. 2026")))?,
+        None => this_year(),
+    };
+    let c = Citation {
+        params,
+        hash,
+        classes: classes as u64,
+        year,
+        url: a.url,
+        file: &a.db,
+    };
+    let mut out = String::new();
+    if a.format != CiteFormat::Cff {
+        out += &c.bibtex();
+    }
+    if a.format == CiteFormat::Both {
+        out += "\n";
+    }
+    if a.format != CiteFormat::Bibtex {
+        out += &c.cff();
+    }
+    emit(&out);
+    Ok(())
+}
+
+struct Citation<'a> {
+    params: Params,
+    hash: String,
+    classes: u64,
+    year: i64,
+    url: Option<String>,
+    file: &'a Path,
+}
+
+impl Citation<'_> {
+    fn title(&self) -> String {
+        let kind = if self.params.include_reducible {
+            "integral binary quartic forms"
+        } else {
+            "irreducible integral binary quartic forms"
+        };
+        format!(
+            "GL2(Z)-classes of {kind} with height below {}",
+            self.params.height
+        )
+    }
+
+    fn doi(&self) -> Option<&str> {
+        self.url
+            .as_deref()
+            .map(|u| u.trim_start_matches("https://doi.org/"))
+            .filter(|u| u.starts_with("10.") && u.contains('/'))
+    }
+
+    fn bibtex(&self) -> String {
+        let name = self
+            .file
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned());
+        let key = format!("qorbits-h{}-{}", self.params.height, &self.hash[..12]);
+        let mut fields = vec![
+            (
+                "title",
+                format!("{{{}}}", self.title().replace("GL2(Z)", "{GL2(Z)}")),
+            ),
+            ("author", "{{qorbits developers}}".to_string()),
+            ("year", format!("{{{}}}", self.year)),
+            (
+                "howpublished",
+                format!(
+                    "{{SQLite file {}, built by qorbits {} (schema version {SCHEMA_VERSION})}}",
+                    name.unwrap_or_default().replace('_', "\\_"),
+                    env!("CARGO_PKG_VERSION")
+                ),
+            ),
+        ];
+        match (self.doi(), &self.url) {
+            (Some(doi), _) => fields.push(("doi", format!("{{{doi}}}"))),
+            (None, Some(url)) => fields.push(("url", format!("{{{url}}}"))),
+            (None, None) => {}
+        }
+        fields.push((
+            "note",
+            format!(
+                "{{Contents: {}. Content SHA-256 {}}}",
+                describe_params(&self.params, self.classes).replace('^', "\\^{}"),
+                self.hash
+            ),
+        ));
+        let body: Vec<String> = fields
+            .iter()
+            .map(|(k, v)| format!("  {k:<12} = {v}"))
+            .collect();
+        format!("@misc{{{key},\n{}\n}}\n", body.join(",\n"))
+    }
+
+    fn cff(&self) -> String {
+        let q = |s: &str| format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""));
+        let mut ids = vec![format!(
+            "  - type: other\n    value: {}\n    description: \"content SHA-256 of the table (the recipe is in its manifest)\"",
+            q(&format!("sha256:{}", self.hash))
+        )];
+        match (self.doi(), &self.url) {
+            (Some(doi), _) => ids.push(format!("  - type: doi\n    value: {}", q(doi))),
+            (None, Some(url)) => ids.push(format!("  - type: url\n    value: {}", q(url))),
+            (None, None) => {}
+        }
+        format!(
+            "cff-version: 1.2.0\nmessage: \"If you use this table, cite it by its content hash.\"\n\
+             type: dataset\ntitle: {}\nauthors:\n  - name: \"qorbits developers\"\n\
+             version: {}\nabstract: {}\nidentifiers:\n{}\nkeywords:\n  - \"binary quartic forms\"\n  - \"arithmetic statistics\"\n\
+             preferred-citation:\n  type: data\n  title: {}\n  authors:\n    - name: \"qorbits developers\"\n  year: {}\n",
+            q(&self.title()),
+            q(&format!("qorbits {}, schema {SCHEMA_VERSION}", env!("CARGO_PKG_VERSION"))),
+            q(&describe_params(&self.params, self.classes)),
+            ids.join("\n"),
+            q(&self.title()),
+            self.year
+        )
+    }
+}

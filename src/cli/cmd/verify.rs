@@ -1,0 +1,110 @@
+//! `qorbits verify`: a table against its manifest, or a rebuild from a manifest compared
+//! with it.
+
+use crate::cmd::Jobs;
+use crate::out::emit;
+use crate::progress::Bar;
+use qorbits::error::Error;
+use qorbits::table::json;
+use qorbits::table::manifest::{default_manifest_path, read_manifest, rebuild_and_compare, verify};
+use serde_json::Value;
+use std::fmt::Write;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+/// Check a table against its manifest, or rebuild from a manifest and compare.
+#[derive(clap::Args, Debug)]
+#[command(
+    after_help = "Examples:\n  qorbits verify --db qorbits-h1e6.sqlite\n  qorbits verify --rebuild manifests/qorbits-h1e5.manifest.json\n\nExit status: 0 when every check passes, 1 when one fails, 2 for a usage error."
+)]
+pub struct Args {
+    /// The table (SQLite file) to check.
+    #[arg(long, value_name = "TABLE", required_unless_present = "rebuild")]
+    db: Option<PathBuf>,
+    /// The manifest (default: beside the table).
+    #[arg(long, value_name = "MANIFEST")]
+    manifest: Option<PathBuf>,
+    /// Rebuild the table described by this manifest and compare.
+    #[arg(long, value_name = "MANIFEST", conflicts_with_all = ["db", "manifest"])]
+    rebuild: Option<PathBuf>,
+    #[command(flatten)]
+    jobs: Jobs,
+    /// Print one JSON object instead of text (keys in docs/output.md).
+    #[arg(long)]
+    json: bool,
+    /// No progress bar.
+    #[arg(long)]
+    quiet: bool,
+}
+
+pub fn run(a: Args) -> Result<ExitCode, Error> {
+    let (manifest, checks) = match (&a.db, &a.rebuild) {
+        (_, Some(m)) => {
+            let bar = Bar::new(a.quiet);
+            let c = a.jobs.run(|| rebuild_and_compare(m, &bar))?;
+            bar.finish();
+            (m.clone(), c)
+        }
+        (Some(db), None) => {
+            let m = a
+                .manifest
+                .clone()
+                .unwrap_or_else(|| default_manifest_path(db));
+            let c = verify(db, &read_manifest(&m)?)?;
+            (m, c)
+        }
+        (None, None) => unreachable!("clap requires --db or --rebuild"),
+    };
+    let failed = checks.iter().filter(|c| !c.ok).count();
+    if a.json {
+        let v = json::object(vec![
+            ("ok", Value::from(failed == 0)),
+            (
+                "table",
+                a.db.as_ref().map(|p| p.display().to_string()).into(),
+            ),
+            ("manifest", Value::from(manifest.display().to_string())),
+            ("rebuilt", Value::from(a.rebuild.is_some())),
+            ("passed", Value::from(checks.len() - failed)),
+            ("failed", Value::from(failed)),
+            (
+                "checks",
+                Value::Array(
+                    checks
+                        .iter()
+                        .map(|c| {
+                            json::object(vec![
+                                ("name", Value::from(c.name.clone())),
+                                ("ok", Value::from(c.ok)),
+                                ("detail", Value::from(c.detail.clone())),
+                            ])
+                        })
+                        .collect(),
+                ),
+            ),
+        ]);
+        emit(&format!("{v}\n"));
+    } else {
+        let mut out = String::new();
+        for c in &checks {
+            let mark = if c.ok { "ok  " } else { "FAIL" };
+            writeln!(out, "{mark} {:<22} {}", c.name, c.detail).expect("string");
+        }
+        if failed == 0 {
+            writeln!(out, "verified: all {} checks passed", checks.len()).expect("string");
+        } else {
+            writeln!(
+                out,
+                "verification FAILED: {failed} of {} checks",
+                checks.len()
+            )
+            .expect("string");
+        }
+        emit(&out);
+    }
+    Ok(if failed == 0 {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(1)
+    })
+}
