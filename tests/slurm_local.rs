@@ -268,7 +268,8 @@ fn array_dependent_merge_and_rerun_of_a_killed_task() {
     let w = workdir(&c, "busy");
     let busy = c.sbatch(&w, &["-o", "busy.out", "--wrap", "sleep 600"]);
     wait_until("the busy job running", || c.state(&busy) == "RUNNING");
-    assert!(!processes_in(&w).is_empty());
+    // RUNNING can come before slurmstepd has started the script in its directory.
+    wait_until("the busy job's processes", || !processes_in(&w).is_empty());
     let down = c.script("down");
     assert!(down.status.success(), "down: {}", text(&down).1);
     assert!(!c.dir.exists(), "down must remove {}", c.dir.display());
