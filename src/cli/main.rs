@@ -7,7 +7,7 @@ mod progress;
 mod render;
 
 use clap::error::ErrorKind;
-use clap::{Parser, Subcommand};
+use clap::{CommandFactory, Parser, Subcommand};
 use qorbits::error::Error;
 use std::process::ExitCode;
 
@@ -57,10 +57,17 @@ fn usage_error(e: clap::Error) -> ExitCode {
             ExitCode::SUCCESS
         }
         _ => {
+            // clap's first paragraph, on one line: the message and what it names.
             let text = e.render().to_string();
-            let first = text.lines().next().unwrap_or("invalid arguments");
-            let first = first.trim_start_matches("error: ").trim();
-            let sub = std::env::args().nth(1).filter(|s| !s.starts_with('-'));
+            let first: Vec<&str> = text
+                .lines()
+                .take_while(|l| !l.trim().is_empty())
+                .map(str::trim)
+                .collect();
+            let first = first.join(" ");
+            let first = first.trim_start_matches("error: ").trim_end_matches(':');
+            let known = |s: &str| Cli::command().get_subcommands().any(|c| c.get_name() == s);
+            let sub = std::env::args().nth(1).filter(|s| known(s));
             let help = match sub {
                 Some(s) => format!("qorbits {s} --help"),
                 None => "qorbits --help".to_string(),

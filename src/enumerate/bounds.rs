@@ -53,7 +53,7 @@ impl Bounds {
     pub fn for_height(x: i128) -> Result<Bounds> {
         if !(1..=MAX_HEIGHT).contains(&x) {
             return Err(Error::Input(format!(
-                "height bound {x} is outside 1 ..= 1e18, the range the builder handles"
+                "height bound {x} is outside the range 1 to 10^18 that the builder handles; give a height in that range"
             )));
         }
         let mut i_max = (x as f64).cbrt() as i128 + 2;

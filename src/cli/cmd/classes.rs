@@ -19,7 +19,7 @@ pub const SEARCH_STEPS_PER_SECOND: f64 = 2.0e7;
 /// List the classes with given invariants I and J.
 #[derive(clap::Args, Debug)]
 #[command(
-    after_help = "Examples:\n  qorbits classes --I 10 --J -29\n  qorbits classes --db qorbits-h1e6.sqlite --I 28 --J 44 --els --csv\n  qorbits classes --I 336 --J -17280 --over-q"
+    after_help = "Examples:\n  qorbits classes --I 10 --J -29\n  qorbits classes --db qorbits-h1e6.sqlite --I 28 --J -160 --els --csv\n  qorbits classes --I 336 --J -17280 --over-q"
 )]
 pub struct Args {
     /// Invariant I (negative values as plain arguments).

@@ -40,7 +40,7 @@ impl Jobs {
 
 /// The estimate printed before long work, and the refusal beyond [`LIMIT_SECONDS`] unless
 /// the user passed `--allow-long`.
-pub const LIMIT_SECONDS: f64 = 6.0 * 3600.0;
+pub const LIMIT_SECONDS: f64 = 3600.0;
 
 /// Prints the estimated time on stderr when it is above a few seconds (unless `quiet`), and
 /// refuses work estimated beyond [`LIMIT_SECONDS`] unless `allow`.

@@ -49,16 +49,15 @@ pub fn run(a: Args) -> Result<(), Error> {
             .map(|c| c.to_string().trim_start_matches('-').len())
             .max();
     let bar = Bar::new(a.quiet);
-    if digits.unwrap_or(0) > 38 {
+    if digits.unwrap_or(0) > 38 && !a.quiet {
         // Beyond machine integers the covariant point is computed with MPFR: seconds.
-        bar.start(
-            &format!(
-                "reducing a form with {}-digit coefficients (covariant point in multiple precision, \
-                 then the discriminant factored)",
-                digits.unwrap_or(0)
-            ),
-            0,
+        let what = format!(
+            "reducing a form with {}-digit coefficients: the covariant point in multiple \
+             precision, then the discriminant factored (seconds to a minute)",
+            digits.unwrap_or(0)
         );
+        eprintln!("qorbits: {what}");
+        bar.start(&what, 0);
     }
     let d = describe(&f)?;
     bar.finish();

@@ -46,6 +46,12 @@ pub fn run(a: Args) -> Result<ExitCode, Error> {
             (m.clone(), c)
         }
         (Some(db), None) => {
+            if std::fs::symlink_metadata(db).is_err() {
+                return Err(Error::Io(format!(
+                    "no table at {}: the file does not exist; check the path",
+                    db.display()
+                )));
+            }
             let m = a
                 .manifest
                 .clone()
