@@ -156,7 +156,10 @@ fn a_failing_sqlite3_makes_the_recipe_fail_instead_of_hashing() {
     // first SELECT fails ("no such table") and sqlite3 exits non-zero.
     let recipe = content_recipe("missing.sqlite");
     let alone = run_pipefail(sqlite3_part(&recipe), &d.0);
-    assert!(!alone.status.success(), "sqlite3 succeeded on a missing table");
+    assert!(
+        !alone.status.success(),
+        "sqlite3 succeeded on a missing table"
+    );
     assert!(!alone.stderr.is_empty(), "sqlite3 said nothing");
     // With pipefail the recipe fails.
     let out = run_pipefail(&recipe, &d.0);

@@ -162,7 +162,10 @@ pub fn gp_lines(script: &str, expected: usize) -> Vec<String> {
     let input = script.to_string();
     let writer = std::thread::spawn(move || stdin.write_all(input.as_bytes()));
     let out = child.wait_with_output().unwrap();
-    writer.join().unwrap().expect("cannot write the script to gp");
+    writer
+        .join()
+        .unwrap()
+        .expect("cannot write the script to gp");
     let stdout = String::from_utf8(out.stdout).expect("gp printed non-UTF-8 output");
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(out.status.success(), "gp failed: {stderr}");
