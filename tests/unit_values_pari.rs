@@ -42,10 +42,17 @@ fn primes_of_the_unit_tests_and_random_ones_agree_with_pari_isprime() {
     for _ in 0..400 {
         ns.push(rng.big_upto(25).abs() + 2u32);
     }
-    let script: String = ns.iter().map(|n| format!("print(isprime({n}))\n")).collect();
+    let script: String = ns
+        .iter()
+        .map(|n| format!("print(isprime({n}))\n"))
+        .collect();
     let pari = gp_lines(&script, ns.len());
     for (n, line) in ns.iter().zip(&pari) {
-        assert_eq!(is_prime(n), line.trim() == "1", "{n}: PARI isprime says {line}");
+        assert_eq!(
+            is_prime(n),
+            line.trim() == "1",
+            "{n}: PARI isprime says {line}"
+        );
     }
     let primes = pari.iter().filter(|l| l.trim() == "1").count();
     assert!(primes >= 20, "only {primes} primes in the sample");
@@ -118,7 +125,11 @@ fn factorisations_of_the_unit_tests_and_random_ones_agree_with_pari_factor() {
     ns.retain(|n| *n != 0);
     let pari = pari_factor_texts(&ns);
     for (n, want) in ns.iter().zip(&pari) {
-        assert_eq!(&factor_string(n), want, "factorisation of {n} (PARI factor)");
+        assert_eq!(
+            &factor_string(n),
+            want,
+            "factorisation of {n} (PARI factor)"
+        );
     }
 }
 
@@ -250,7 +261,10 @@ fn textbook_galois_groups_and_unit_test_patterns_agree_with_pari() {
             other => panic!("polgalois of {c:?}: {other}"),
         };
         assert_eq!(pari, *want, "{c:?}");
-        assert_eq!(galois_group(&Form::<Integer>::from_i64(*c)).unwrap(), Some(pari));
+        assert_eq!(
+            galois_group(&Form::<Integer>::from_i64(*c)).unwrap(),
+            Some(pari)
+        );
     }
     // Factor patterns over Q: PARI's factor degrees, plus a linear factor for a = 0.
     let patterns: [([i64; 5], FactorPattern); 6] = [
@@ -282,6 +296,9 @@ fn textbook_galois_groups_and_unit_test_patterns_agree_with_pari() {
             other => panic!("factor of {c:?}: {other}"),
         };
         assert_eq!(pari, *want, "{c:?}");
-        assert_eq!(factor_pattern(&Form::<Integer>::from_i64(*c)).unwrap(), pari);
+        assert_eq!(
+            factor_pattern(&Form::<Integer>::from_i64(*c)).unwrap(),
+            pari
+        );
     }
 }

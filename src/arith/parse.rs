@@ -104,7 +104,10 @@ mod tests {
         for s in ["1\n2", "x\r\ny", &format!("{}x", "9".repeat(100_000))] {
             let e = parse_integer("coefficient", s).unwrap_err().to_string();
             let h = parse_height(&format!("{s}.5")).unwrap_err().to_string();
-            assert!(!e.contains('\n') && !h.contains('\n') && e.len() < 200, "{e}");
+            assert!(
+                !e.contains('\n') && !h.contains('\n') && e.len() < 200,
+                "{e}"
+            );
         }
     }
 }
