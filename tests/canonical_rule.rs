@@ -232,9 +232,9 @@ fn check_class(seeds: &[Coeffs], small: &[[i64; 4]]) -> Report {
         for g in small {
             if near_f_eta(move_point(g, z), 1e-2) {
                 let h = act_small(s, g);
-                if !verdicts.contains_key(&h) {
-                    let v = verdict(&h);
-                    verdicts.insert(h, v);
+                if let std::collections::btree_map::Entry::Vacant(slot) = verdicts.entry(h) {
+                    let v = verdict(slot.key());
+                    slot.insert(v);
                 }
             }
         }
@@ -400,7 +400,7 @@ fn near_boundary_forms() -> Vec<(Coeffs, bool, &'static str)> {
 #[test]
 fn canonical_form_is_the_smallest_member_in_f_eta() {
     let small = small_matrices();
-    assert!(small.iter().any(|g| *g == [0, 1, 1, 0]));
+    assert!(small.contains(&[0, 1, 1, 0]));
     // Classes of the brute-force box.
     let boxed = box_classes(3);
     // Symmetric forms: the Klein four at i and each reflection through a line of ∂F.
