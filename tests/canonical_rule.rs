@@ -19,9 +19,12 @@
 //! the boundary (margin < 10⁻⁶) it is repeated at twice the precision and must agree.
 //!
 //! Classes: every form with coefficients in −3..=3 (Disc ≠ 0); forms invariant under the
-//! stabiliser of i and under each reflection of PGL2(Z) through a boundary line of F
-//! (`common::symmetrise`); and forms built so that their point lies 10⁻³¹ or 10⁻⁴⁵ inside or
-//! outside each of the three boundary pieces of F_η.
+//! stabiliser of i, under each reflection of PGL2(Z) through a boundary line of F and under
+//! the third reflection fixing e^{πi/3} (`common::symmetrise`; a form fixed by the whole
+//! stabiliser of e^{πi/3} has Disc = 0, checked); and forms built so that their point lies
+//! 10⁻³¹ or 10⁻⁴⁵ inside or outside each of the three boundary pieces of F_η, where the
+//! library's own F_η test is compared with the test's too. The run prints how many classes
+//! have a member on each line of ∂F, at i, at e^{πi/3}, or a non-trivial stabiliser.
 
 mod common;
 #[path = "canonical_rule/julia.rs"]
