@@ -70,8 +70,12 @@ fn every_eligible_pair_is_attained() {
         for j in -3000i64..=3000 {
             let (bi, bj) = (Integer::from(i), Integer::from(j));
             match form_with_invariants(&bi, &bj) {
-                Some(f) => assert_eq!(f.invariants().unwrap().i, bi),
-                None => assert!(!eligible(&bi, &bj)),
+                Some(f) => {
+                    let inv = f.invariants().unwrap();
+                    assert_eq!((inv.i, inv.j), (bi.clone(), bj.clone()), "{f}");
+                    assert!(eligible(&bi, &bj), "({i}, {j}) is attained by {f}");
+                }
+                None => assert!(!eligible(&bi, &bj), "no form for eligible ({i}, {j})"),
             }
         }
     }

@@ -18,8 +18,6 @@ use qorbits::form::{Form, Gl2};
 use rug::ops::Pow;
 use rug::Integer;
 use std::collections::BTreeMap;
-use std::io::ErrorKind;
-use std::process::{Command, Stdio};
 
 fn big_form(c: [Integer; 5]) -> Form<Integer> {
     Form::new(c)
@@ -222,42 +220,6 @@ fn sample() -> Vec<(&'static str, Form<Integer>)> {
     s.forms
 }
 
-/// Run one gp script through a temporary file and return stdout's lines. Fails the test,
-/// with the fix, when `gp` is not installed.
-fn run_gp(script: &str) -> Vec<String> {
-    let nanos = std::time::SystemTime::now()
-        .duration_since(std::time::UNIX_EPOCH)
-        .map(|d| d.as_nanos())
-        .unwrap_or(0);
-    let path = std::env::temp_dir().join(format!(
-        "qorbits-galois-pari-{}-{nanos}.gp",
-        std::process::id()
-    ));
-    std::fs::write(&path, script).expect("cannot write the gp script to the temp dir");
-    let result = Command::new("gp")
-        .args(["-q", "-f", "-D", "colors=no", "-s", "100000000"])
-        .arg(&path)
-        .stdin(Stdio::null())
-        .output();
-    let _ = std::fs::remove_file(&path);
-    let out = match result {
-        Ok(out) => out,
-        Err(e) if e.kind() == ErrorKind::NotFound => panic!(
-            "PARI/GP's `gp` is not on PATH: install the Debian package pari-gp \
-             (apt-get install pari-gp; CI installs it). This test needs it and does not skip."
-        ),
-        Err(e) => panic!("cannot run gp: {e}"),
-    };
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    assert!(out.status.success(), "gp failed: {stderr}");
-    assert!(stderr.trim().is_empty(), "gp reported: {stderr}");
-    String::from_utf8(out.stdout)
-        .expect("gp printed non-UTF-8 output")
-        .lines()
-        .map(str::to_string)
-        .collect()
-}
-
 /// The gp side: one line `index degrees irreducible order sign` per form, e.g.
 /// `17 1+3 0 0 0`; `irreducible` is `polisirreducible` (−1 when a = 0), order and sign come
 /// from `polgalois` (0 0 for reducible forms).
@@ -313,14 +275,7 @@ fn factor_pattern_and_galois_group_agree_with_pari() {
         script.push_str(&format!("qf({k}, {a}, {b}, {c}, {d}, {e});\n"));
     }
     script.push_str("quit\n");
-    let lines = run_gp(&script);
-    assert_eq!(
-        lines.len(),
-        forms.len(),
-        "gp printed {} lines for {} forms",
-        lines.len(),
-        forms.len()
-    );
+    let lines = common::gp_lines(&script, forms.len());
 
     let mut mismatches = Vec::new();
     let mut by_pattern: BTreeMap<&str, usize> = BTreeMap::new();

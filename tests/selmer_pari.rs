@@ -9,7 +9,9 @@
 //! The curves without rational 2-torsion: every y² = x³ + Ax + B with |A|, |B| ≤ 4, 80
 //! pseudo-random ones with |A|, |B| ≤ 50, sixteen with 2-Selmer rank 3 (found by an
 //! `ellrank` search over |A|, |B| ≤ 50 while writing this test; gp recomputes their ranks
-//! here), and general Weierstrass models with small random a-invariants. With 2-torsion
+//! here), the curves with |A|, |B| ≤ 20 on which `ellrank` reports s > 0 (non-trivial
+//! Sha[2], found by a gp search in the test), and general Weierstrass models with small
+//! random a-invariants. With 2-torsion
 //! (T = 1 or 2, from gp's `elltors`): short curves with one and with three rational roots
 //! of x³ + Ax + B, and general models. Also checked on every curve: each
 //! listed element is an everywhere locally soluble irreducible quartic with invariants
@@ -41,6 +43,41 @@ const RANK_THREE: [(i64, i64); 16] = [
     (50, -22),
 ];
 
+/// Radius of the search for curves with non-trivial Sha[2].
+const SHA_BOX: i64 = 20;
+
+/// The short curves y² = x³ + Ax + B with |A|, |B| ≤ SHA_BOX where PARI's `ellrank`
+/// reports s > 0 (a lower bound for the 2-rank of Sha; ellrank's documentation), searched
+/// by gp here: one line per non-singular curve, so a failed line cannot go unnoticed.
+fn sha_search() -> Vec<(i64, i64)> {
+    let pairs: Vec<(i64, i64)> = (-SHA_BOX..=SHA_BOX)
+        .flat_map(|a| (-SHA_BOX..=SHA_BOX).map(move |b| (a, b)))
+        .filter(|&(a, b)| 4 * a * a * a + 27 * b * b != 0)
+        .collect();
+    let script = format!(
+        "for(a=-{SHA_BOX},{SHA_BOX},for(b=-{SHA_BOX},{SHA_BOX},if(4*a^3+27*b^2!=0,\
+         print(a,\" \",b,\" \",ellrank(ellinit([a,b]))[3]))))\n"
+    );
+    let lines = common::gp_lines(&script, pairs.len());
+    let mut found = Vec::new();
+    for (&(a, b), line) in pairs.iter().zip(&lines) {
+        let v: Vec<i64> = line
+            .split_whitespace()
+            .map(|t| t.parse().unwrap())
+            .collect();
+        assert_eq!(v[..2], [a, b], "gp line {line:?}");
+        if v[2] > 0 {
+            found.push((a, b));
+        }
+    }
+    assert!(
+        found.len() >= 12,
+        "gp found {} curves with s > 0 for |A|, |B| <= {SHA_BOX}",
+        found.len()
+    );
+    found
+}
+
 fn curves_without_two_torsion() -> Vec<[i64; 5]> {
     let torsion_free = true;
     let mut out: Vec<[i64; 5]> = Vec::new();
@@ -66,6 +103,9 @@ fn curves_without_two_torsion() -> Vec<[i64; 5]> {
         n += out.len() - before;
     }
     for (a, b) in RANK_THREE {
+        push(short(a, b), &mut out);
+    }
+    for (a, b) in sha_search() {
         push(short(a, b), &mut out);
     }
     let mut n = 0;
@@ -131,20 +171,28 @@ fn curves_with_two_torsion() -> Vec<[i64; 5]> {
     out
 }
 
-/// Our 2-Selmer rank and 2-torsion rank against PARI's `R + s + T` and T, on every curve;
-/// returns the curves by 2-Selmer rank 0, 1, 2, 3, 4+.
-fn check_against_pari(curves: &[[i64; 5]]) -> [usize; 5] {
+/// What the comparison saw: curves by 2-Selmer rank 0, 1, 2, 3, 4+, and the curves where
+/// PARI's `s` (a lower bound for the 2-rank of Sha, ellrank's documentation) is positive.
+struct Seen {
+    by_rank: [usize; 5],
+    sha: Vec<[i64; 5]>,
+}
+
+/// Our 2-Selmer rank and 2-torsion rank against PARI's `R + s + T` and T, on every curve.
+/// Where PARI reports `s > 0` our 2-Selmer rank must exceed `R + T` (R ≥ the rank): Sha[2]
+/// is what separates the 2-Selmer rank from the rank.
+fn check_against_pari(curves: &[[i64; 5]]) -> Seen {
     let mut script = String::new();
     for c in curves {
         script.push_str(&format!(
             "E=ellinit([{},{},{},{},{}]); r=ellrank(E); t=elltors(E)[2]; \
-             T=#[x|x<-t,x%2==0]; print(r[2]+r[3]+T, \" \", T);\n",
+             T=#[x|x<-t,x%2==0]; print(r[2]+r[3]+T, \" \", T, \" \", r[2], \" \", r[3]);\n",
             c[0], c[1], c[2], c[3], c[4]
         ));
     }
-    let lines = common::gp_lines(&script);
-    assert_eq!(lines.len(), curves.len());
+    let lines = common::gp_lines(&script, curves.len());
     let mut by_rank = [0usize; 5];
+    let mut sha = Vec::new();
     for (c, line) in curves.iter().zip(&lines) {
         let v: Vec<u32> = line
             .split_whitespace()
@@ -161,6 +209,13 @@ fn check_against_pari(curves: &[[i64; 5]]) -> [usize; 5] {
             v[0],
             v[1]
         );
+        assert_eq!(v.len(), 4, "gp line {line:?}");
+        if v[3] > 0 {
+            // C = T + R + S with S ≥ s > 0 (ellrank's documentation): the Selmer rank is
+            // strictly above rank + T.
+            assert!(s.rank > v[2] + v[1], "{c:?}: ours {}, PARI {v:?}", s.rank);
+            sha.push(*c);
+        }
         by_rank[s.rank.min(4) as usize] += 1;
         // Every element is an els quartic without a rational root (irreducible unless E has
         // 2-torsion) with the curve's invariants, and the elements are pairwise inequivalent
@@ -187,31 +242,36 @@ fn check_against_pari(curves: &[[i64; 5]]) -> [usize; 5] {
             }
         }
     }
-    by_rank
+    Seen { by_rank, sha }
 }
 
 #[test]
 fn selmer_ranks_match_pari_ellrank() {
     let curves = curves_without_two_torsion();
     assert!(curves.len() >= 150, "{} curves", curves.len());
-    let by_rank = check_against_pari(&curves);
+    let Seen { by_rank, sha } = check_against_pari(&curves);
     println!(
-        "{} curves, by 2-Selmer rank 0..4+: {by_rank:?}",
-        curves.len()
+        "{} curves, by 2-Selmer rank 0..4+: {by_rank:?}; PARI s > 0 on {}: {sha:?}",
+        curves.len(),
+        sha.len()
     );
     assert!(
         by_rank[2] >= 20 && by_rank[3] >= 16,
         "ranks 0..4+: {by_rank:?}"
     );
+    // Curves with non-trivial Sha[2] are among those compared (PARI recomputes s > 0 in
+    // the comparison, where our rank must exceed PARI's bound on the rank).
+    assert!(sha.len() >= 20, "only {} curves with s > 0", sha.len());
 }
 
 #[test]
 fn selmer_ranks_with_two_torsion_match_pari_ellrank() {
     let curves = curves_with_two_torsion();
-    let by_rank = check_against_pari(&curves);
+    let Seen { by_rank, sha } = check_against_pari(&curves);
     println!(
-        "{} curves with 2-torsion, by 2-Selmer rank 0..4+: {by_rank:?}",
-        curves.len()
+        "{} curves with 2-torsion, by 2-Selmer rank 0..4+: {by_rank:?}; PARI s > 0 on {}",
+        curves.len(),
+        sha.len()
     );
     assert!(
         by_rank[2] + by_rank[3] + by_rank[4] >= 20,

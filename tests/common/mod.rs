@@ -3,6 +3,7 @@
 #![allow(dead_code)]
 
 pub mod fixture;
+pub mod mutate;
 
 use qorbits::form::{Form, Gl2};
 use rug::Integer;
@@ -139,28 +140,46 @@ pub fn symmetrise(f: &Form<Integer>, group: &[[i64; 4]]) -> Form<Integer> {
     out
 }
 
-/// Run a PARI/GP script (Debian package pari-gp) and return its output lines. Fails the
-/// test with an instruction when `gp` is missing: CI installs it.
-pub fn gp_lines(script: &str) -> Vec<String> {
+/// Run a PARI/GP script (Debian package pari-gp) and return its output lines, failing the
+/// test unless gp ran cleanly and printed exactly `expected` lines.
+///
+/// gp exits with status 0 even when a line of the script raised an error: it prints
+/// `***` on stderr, drops the rest of that line and goes on. So a check whose gp line failed
+/// would silently vanish from a `zip`; here any `***` on stderr or stdout (errors and
+/// warnings alike) and any other line count are fatal. Fails with an instruction when `gp`
+/// is missing: CI installs it.
+pub fn gp_lines(script: &str, expected: usize) -> Vec<String> {
     use std::io::Write;
     use std::process::{Command, Stdio};
     let mut child = Command::new("gp")
         .args(["-q", "-f", "-D", "colors=no", "-s", "200000000"])
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
         .spawn()
         .expect("PARI/GP's `gp` is needed for this test: apt-get install pari-gp");
-    child
-        .stdin
-        .take()
-        .unwrap()
-        .write_all(script.as_bytes())
-        .unwrap();
+    // Feed stdin from a thread: a long script must not block on a full stdout pipe.
+    let mut stdin = child.stdin.take().unwrap();
+    let input = script.to_string();
+    let writer = std::thread::spawn(move || stdin.write_all(input.as_bytes()));
     let out = child.wait_with_output().unwrap();
-    assert!(out.status.success(), "gp failed");
-    String::from_utf8(out.stdout)
+    writer
+        .join()
         .unwrap()
-        .lines()
-        .map(str::to_string)
-        .collect()
+        .expect("cannot write the script to gp");
+    let stdout = String::from_utf8(out.stdout).expect("gp printed non-UTF-8 output");
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "gp failed: {stderr}");
+    assert!(
+        !stderr.contains("***") && !stdout.contains("***"),
+        "gp reported an error: {stderr}{stdout}"
+    );
+    let lines: Vec<String> = stdout.lines().map(str::to_string).collect();
+    assert_eq!(
+        lines.len(),
+        expected,
+        "gp printed {} lines where the test expects {expected}; stderr: {stderr}",
+        lines.len()
+    );
+    lines
 }
