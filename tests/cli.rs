@@ -54,7 +54,10 @@ fn reduce_prints_the_class_and_json() {
     let (out, _) = text(&o);
     // The canonical form: the library's, whose rule tests/canonical_rule.rs checks directly.
     let c = canonical(&Form::<Integer>::from_i64(f)).unwrap().form.c;
-    let shown = format!("canonical    {} {} {} {} {}\n", c[0], c[1], c[2], c[3], c[4]);
+    let shown = format!(
+        "canonical    {} {} {} {} {}\n",
+        c[0], c[1], c[2], c[3], c[4]
+    );
     assert!(out.contains(&shown), "{out}");
     // PARI/GP: the Galois group (polgalois order 24 is S4) and Disc, which must satisfy
     // 4I³ − J² = 27·Disc (DESIGN §2) with I and J from their formulas.

@@ -1,8 +1,8 @@
 //! Property tests (proptest) of the kernel and of every parser of user input.
 //!
 //! * The canonical form is a class invariant (DESIGN §3) under random moves of GL2(Z) with
-//!   entries up to 10⁶, on coefficients up to 10⁴⁰ (forms of one size; forms of mixed sizes
-//!   expose a kernel bug and are an ignored property for now).
+//!   entries up to 10⁶, on coefficients up to 10⁴⁰, of one size and of mixed sizes (the
+//!   latter give roots in tight pairs, the hard case of the covariant point).
 //! * Parsers of heights, integers, forms (`qorbits reduce` arguments, through the binary),
 //!   curves (`Curve::new` on parsed coefficients) and manifests (`read_manifest` on mutated
 //!   copies of a committed manifest) fed random and mutated bytes: no panic, and an error
@@ -140,11 +140,10 @@ proptest! {
     #![proptest_config(config(64))]
 
     /// Forms whose coefficients differ wildly in size (roots spread over many orders of
-    /// magnitude), moved by entries up to 10⁶: about one in six ends in "numerical failure
-    /// (no covariant point …)" from `canonical` today (a kernel bug, reported; inputs in
-    /// `canonical_regressions_of_mixed_size_forms`). Run with `--ignored`.
+    /// magnitude, some in tight pairs), moved by entries up to 10⁶: these once ended in
+    /// "numerical failure (no covariant point …)"; inputs that did are kept in
+    /// `canonical_regressions_of_mixed_size_forms`.
     #[test]
-    #[ignore = "kernel bug: canonical fails on mixed-size forms after big moves"]
     fn canonical_form_is_invariant_for_mixed_sizes(c in form_of_mixed_sizes(), g in gl2()) {
         check_invariance(c, g)?;
     }
@@ -154,7 +153,6 @@ proptest! {
 /// above): the first is the move of (0, −6959, 35889903437304348727042357934,
 /// 35515085962663787, 32) by [[198374, −494389], [75513, −188194]].
 #[test]
-#[ignore = "kernel bug: canonical fails on these forms (numerical failure)"]
 fn canonical_regressions_of_mixed_size_forms() {
     let forms = [[
         "345206837665681737207265703465870171628285420261478",

@@ -252,8 +252,10 @@ fn minimise<R: Real>(roots: &[Cx<R>], start: (R, R)) -> Option<(R, R, f64)> {
             * (l.gx.clone() * l.gx.clone() + l.gy.clone() * l.gy.clone())
                 .sqrt()
                 .to_f64();
-        if pd && (newton_phase || (grad < 1e-3 && len < 1e-2)) {
-            // Plain Newton on ∇G near the minimum.
+        // Plain Newton on ∇G near the minimum; a long Newton step (the minimum lies along a
+        // nearly flat valley of G, as when the roots form two tight pairs) is damped by the
+        // line search below instead.
+        if pd && len < 0.1 && (newton_phase || (grad < 1e-3 && len < 1e-2)) {
             newton_phase = true;
             let ny = y.clone() + dy.clone();
             if ny <= zero {
@@ -268,7 +270,16 @@ fn minimise<R: Real>(roots: &[Cx<R>], start: (R, R)) -> Option<(R, R, f64)> {
                 // Quadratic convergence: the error after this step is far below the step.
                 return Some((x, y, 2.0 * step + tiny));
             }
-            if step < 1e-8 * (1.0 + yf) && step >= last_step * 0.5 {
+            // Steps are measured against the scale of the point: for y ≥ ½ against 1 + y
+            // (the fundamental domain), below against y itself, so that a point near a
+            // tight cluster of roots (y ≪ 1) is not taken for converged while its steps are
+            // still large in the hyperbolic metric.
+            // The noise floor is that of the working precision: about 1e-8 in f64, far
+            // lower with MPFR, where Newton is left to converge (it is affine invariant, so
+            // a nearly flat valley of G, as for two tight pairs of roots, does not stop it).
+            let floor = if yf >= 0.5 { 1.0 + yf } else { yf };
+            let noise = eps.to_f64().sqrt().min(1e-8);
+            if step < noise * floor && step >= last_step * 0.5 {
                 // Rounding noise: successive steps no longer shrink.
                 return Some((x, y, 4.0 * step + tiny));
             }
@@ -309,6 +320,32 @@ fn minimise<R: Real>(roots: &[Cx<R>], start: (R, R)) -> Option<(R, R, f64)> {
         }
     }
     None
+}
+
+/// The best of several starting points by the value of G: the centroid start of
+/// [`start_point`], and for each pair of roots the point above their midpoint at half their
+/// distance. When two roots are much closer than the others (a tight pair), the minimum
+/// lies deep towards them, far along a nearly flat valley of G from the centroid; starting
+/// there keeps the descent short.
+fn best_start<R: Real>(roots: &Roots<R>) -> (R, R) {
+    let mut best = start_point(roots);
+    let mut best_g = value(&roots.finite, &best.0, &best.1);
+    let zero = best.0.lit(0.0);
+    let half = zero.lit(0.5);
+    for (j, a) in roots.finite.iter().enumerate() {
+        for b in &roots.finite[j + 1..] {
+            let x = (a.re.clone() + b.re.clone()) * half.clone();
+            let y = a.sub(b).abs() * half.clone();
+            if y <= zero {
+                continue;
+            }
+            let g = value(&roots.finite, &x, &y);
+            if g < best_g {
+                (best, best_g) = ((x, y), g);
+            }
+        }
+    }
+    best
 }
 
 fn start_point<R: Real>(roots: &Roots<R>) -> (R, R) {
@@ -381,18 +418,102 @@ pub fn point_mp(c: &[Integer; 5], prec: u32) -> Option<Point<Mp>> {
             (a, b) => a.or(b)?,
         },
     };
-    let start = start_point(&r);
     let scale = r
         .finite
         .iter()
         .map(|z| z.abs().to_f64())
         .fold(1.0, f64::max);
-    let (x, y, err) = minimise(&r.finite, start)?;
+    let (x, y, err) = match normalised_minimum(&r.finite) {
+        Some(p) => p,
+        None => inverted_minimum(&r)?,
+    };
     Some(Point {
         x,
         y,
         err: err + 4.0 * root_error_bound(&r) * (1.0 + scale),
     })
+}
+
+/// The minimum of G for these finite roots (with `−4 log y`, so a missing fourth root is
+/// the one at infinity), computed on the roots moved to mean 0 and spread 1 and moved back.
+/// z(f) is covariant under the real affine maps x ↦ s·x + m (s > 0): they multiply every
+/// w_j and Im z by s², s, so G changes by a constant; at spread 1 the steps and tolerances
+/// of the descent are at their natural scale, also for a cluster of roots.
+fn normalised_minimum(finite: &[Cx<Mp>]) -> Option<(Mp, Mp, f64)> {
+    let zero = finite[0].re.lit(0.0);
+    let n = zero.lit(finite.len() as f64);
+    let m = finite
+        .iter()
+        .fold(zero.clone(), |acc, z| acc + z.re.clone())
+        / n.clone();
+    let spread = (finite.iter().fold(zero.clone(), |acc, z| {
+        let d = z.re.clone() - m.clone();
+        acc + d.clone() * d + z.im.clone() * z.im.clone()
+    }) / n)
+        .sqrt();
+    if spread <= zero {
+        return None;
+    }
+    let moved = Roots {
+        finite: finite
+            .iter()
+            .map(|z| {
+                Cx::new(
+                    (z.re.clone() - m.clone()) / spread.clone(),
+                    z.im.clone() / spread.clone(),
+                )
+            })
+            .collect(),
+        at_infinity: finite.len() < 4,
+        err: Vec::new(),
+    };
+    let (x, y, err) = minimise(&moved.finite, best_start(&moved))?;
+    Some((
+        m + spread.clone() * x,
+        spread.clone() * y,
+        spread.to_f64() * err,
+    ))
+}
+
+/// The minimum of G after the map z ↦ −1/(z − c) of SL2(R) that sends the midpoint c of
+/// the two closest roots to infinity (and a root at infinity to 0), moved back by
+/// z = c − 1/z'. When the roots form two tight pairs of very different widths the minimum
+/// lies far along the geodesic between them; in these coordinates that geodesic is a
+/// vertical line, which the descent follows, where in the original ones it is a
+/// semicircle along which G is nearly flat (derived here; G is SL2(R)-covariant like the
+/// point itself, DESIGN §3).
+fn inverted_minimum(r: &Roots<Mp>) -> Option<(Mp, Mp, f64)> {
+    let f = &r.finite;
+    let mut closest: Option<(usize, usize, Mp)> = None;
+    for j in 0..f.len() {
+        for k in j + 1..f.len() {
+            let d = f[j].sub(&f[k]).abs();
+            if closest.as_ref().is_none_or(|c| d < c.2) {
+                closest = Some((j, k, d));
+            }
+        }
+    }
+    let (j, k, _) = closest?;
+    let zero = f[0].re.lit(0.0);
+    let c = (f[j].re.clone() + f[k].re.clone()) * zero.lit(0.5);
+    let one = Cx::new(zero.lit(1.0), zero.clone());
+    let mut moved = Vec::with_capacity(4);
+    for z in f {
+        let d = Cx::new(z.re.clone() - c.clone(), z.im.clone());
+        if d.norm2() <= zero {
+            return None;
+        }
+        moved.push(Cx::new(zero.clone(), zero.clone()).sub(&one.div(&d)));
+    }
+    if r.at_infinity {
+        moved.push(Cx::new(zero.clone(), zero.clone()));
+    }
+    let (x, y, err) = normalised_minimum(&moved)?;
+    // z = c − 1/z'; |dz/dz'| = 1/|z'|².
+    let zp = Cx::new(x, y);
+    let n2 = zp.norm2();
+    let z = Cx::new(c, zero).sub(&one.div(&zp));
+    Some((z.re, z.im, err / n2.to_f64()))
 }
 
 #[cfg(test)]
