@@ -26,8 +26,8 @@
 //! }
 //! ```
 
-use crate::arith::int::Int;
 use crate::enumerate::bounds::{c_window_a0, Bounds, Task};
+use crate::enumerate::syzygy::{solutions, solutions_reference, syzygy_cubic};
 use crate::error::{Error, Result};
 use crate::form::{eligible, invariants_from_ij, Form};
 use rayon::prelude::*;
@@ -57,46 +57,54 @@ pub fn refusal(i: &Integer, j: &Integer) -> Option<String> {
     None
 }
 
+/// Which loop over c a search runs: the fast one of [`crate::enumerate::syzygy`] or the
+/// plain reference loop (one big-integer evaluation per c), kept as the oracle of the
+/// tests.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Route {
+    /// Forward differences on machine integers and the residue filter.
+    Fast,
+    /// One exact evaluation and square test per c.
+    Reference,
+}
+
 /// Candidate forms with invariants exactly (I, J), one per translation class, for one task.
 fn candidates(
     i: i128,
     j: i128,
     bounds: &Bounds,
     task: Task,
+    route: Route,
     out: &mut Vec<[i128; 5]>,
 ) -> Result<()> {
     let ovf = || Error::TooLarge(format!("(I, J) = ({i}, {j}) is too large for the search"));
     let (a, b) = (i128::from(task.a), i128::from(task.b));
     if a != 0 {
         let (c_lo, c_hi) = bounds.c_range(task.a, task.b);
+        let cubic = syzygy_cubic(i, j, a, b).ok_or_else(ovf)?;
+        let mut found = Vec::new();
+        match route {
+            Route::Fast => solutions(&cubic, c_lo, c_hi, &mut found),
+            Route::Reference => solutions_reference(&cubic, c_lo, c_hi, &mut found),
+        }
+        .ok_or_else(ovf)?;
         let a2 = a * a;
-        for c in c_lo as i128..=c_hi as i128 {
-            let p = 8 * a * c - 3 * b * b;
-            // 27R² = 48·I·a²·P − P³ − 64·J·a³
-            let rhs = (|| {
-                let t1 = 48i128.checked_mul(i)?.checked_mul(a2)?.checked_mul(p)?;
-                let t2 = p.checked_mul(p)?.checked_mul(p)?;
-                let t3 = 64i128.checked_mul(j)?.checked_mul(a2)?.checked_mul(a)?;
-                t1.checked_sub(t2)?.checked_sub(t3)
-            })()
-            .ok_or_else(ovf)?;
-            if rhs < 0 || rhs % 27 != 0 {
-                continue;
-            }
-            let s = rhs / 27;
-            let r = Int::isqrt(&s).expect("non-negative");
-            if r * r != s {
-                continue;
-            }
+        for (c, r) in found {
+            let c = i128::from(c);
             for r in if r == 0 { vec![0] } else { vec![r, -r] } {
                 // R = b³ + 8a²d − 4abc
-                let num = r - b * b * b + 4 * a * b * c;
+                let num =
+                    (|| r.checked_sub(b.pow(3))?.checked_add(4 * a * b * c))().ok_or_else(ovf)?;
                 if num % (8 * a2) != 0 {
                     continue;
                 }
                 let d = num / (8 * a2);
                 // I = 12ae − 3bd + c²
-                let ne = i - c * c + 3 * b * d;
+                let ne = (|| {
+                    i.checked_sub(c * c)?
+                        .checked_add(3i128.checked_mul(b)?.checked_mul(d)?)
+                })()
+                .ok_or_else(ovf)?;
                 if ne % (12 * a) != 0 {
                     continue;
                 }
@@ -140,6 +148,16 @@ pub fn forms_with_invariants(
     j: &Integer,
     include_reducible: bool,
 ) -> Result<Vec<[i128; 5]>> {
+    forms_with_invariants_by(i, j, include_reducible, Route::Fast)
+}
+
+/// [`forms_with_invariants`] with the loop over c chosen: the tests compare the two routes.
+pub fn forms_with_invariants_by(
+    i: &Integer,
+    j: &Integer,
+    include_reducible: bool,
+    route: Route,
+) -> Result<Vec<[i128; 5]>> {
     if let Some(why) = refusal(i, j) {
         return Err(Error::Input(why));
     }
@@ -166,7 +184,7 @@ pub fn forms_with_invariants(
         .par_iter()
         .map(|&task| {
             let mut found = Vec::new();
-            candidates(ii, jj, &bounds, task, &mut found)?;
+            candidates(ii, jj, &bounds, task, route, &mut found)?;
             Ok(found)
         })
         .collect();

@@ -6,3 +6,5 @@
 pub mod bounds;
 pub mod bulk;
 pub mod by_invariants;
+pub mod squares;
+pub mod syzygy;
