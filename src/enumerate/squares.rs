@@ -46,6 +46,7 @@ const fn square_mask(m: u64) -> u64 {
 /// each coefficient by each, then every residue by a constant modulus.
 const G1: u64 = 5 * 7 * 11 * 13 * 17 * 19 * 23 * 29 * 31 * 37 * 41 * 43 * 47 * 53;
 const G2: u64 = 27 * 59 * 61;
+const _: () = assert!(G1 < 1 << 63 && G2 < 1 << 63);
 
 /// `k mod g` in `0..g` (g < 2⁶³).
 fn residue(k: i128, g: u64) -> u64 {
@@ -144,7 +145,6 @@ mod tests {
                 assert_eq!((mask >> r) & 1 == 1, is_square_mod(3 * r, m), "{r} mod {m}");
             }
         }
-        assert!(G1 < 1 << 63 && G2 < 1 << 63);
     }
 
     /// The sieve against a direct test of every c: it must keep every c with
