@@ -6,5 +6,6 @@
 pub mod bounds;
 pub mod bulk;
 pub mod by_invariants;
+pub mod congruent;
 pub mod squares;
 pub mod syzygy;
