@@ -145,7 +145,11 @@ fn ineligible_and_degenerate_pairs_are_refused() {
 #[test]
 fn the_fast_loop_finds_the_forms_of_the_plain_loop_up_to_1e12() {
     let mut rng = Rng(1e12 as u64);
-    let mut pairs = vec![(9999i64, -54i64), (-48 * 29, -1728 * 60), (-48 * 7, 1728 * 13)];
+    let mut pairs = vec![
+        (9999i64, -54i64),
+        (-48 * 29, -1728 * 60),
+        (-48 * 7, 1728 * 13),
+    ];
     while pairs.len() < 12 {
         // Random forms with H from 10⁶ to 10¹¹: their own pair has at least one class.
         let f = Form::<Integer>::from_i64(std::array::from_fn(|_| rng.range(12)));

@@ -135,12 +135,11 @@ const SECONDS_PER_TASK: f64 = 2.0e-6;
 const SECONDS_PER_C: f64 = 5.0e-10;
 const SECONDS_PER_K4: f64 = 2.0e-7;
 
-/// The route with the smaller modelled cost for the family below Y: the searches cost
+/// The route with the smaller modelled cost for the family below Y (its curves given): the searches cost
 /// `Σ_curves (2.37·K_E²·t_task + 47·K_E³·t_c)` with `K_E = H(E)^{1/6}` (2.37·K² tasks and
 /// 47·K³ values of c per search, counted in `docs/family-enumeration.md` §5); the family
 /// enumeration `K⁴·t_K4` for the largest K.
-pub fn cheaper_route(y: i128) -> FamilyRoute {
-    let family = short_family(y);
+pub fn cheaper_route(y: i128, family: &[(i64, i64)]) -> FamilyRoute {
     let per_pair: f64 = family
         .iter()
         .map(|&(a, b)| {
@@ -166,7 +165,9 @@ pub fn selmer_stats(y: i128, progress: &dyn Progress) -> Result<SelmerStats> {
             "the height bound must be positive, not {y}"
         )));
     }
-    selmer_stats_by(y, cheaper_route(y), progress)
+    let family = short_family(y);
+    let route = cheaper_route(y, &family);
+    stats_of(y, family, route, progress)
 }
 
 /// [`selmer_stats`] by the route given (the tests compare the two).
@@ -180,7 +181,15 @@ pub fn selmer_stats_by(
             "the height bound must be positive, not {y}"
         )));
     }
-    let family = short_family(y);
+    stats_of(y, short_family(y), route, progress)
+}
+
+fn stats_of(
+    y: i128,
+    family: Vec<(i64, i64)>,
+    route: FamilyRoute,
+    progress: &dyn Progress,
+) -> Result<SelmerStats> {
     let curve = |&(a, b): &(i64, i64)| Curve::short(Integer::from(a), Integer::from(b));
     let ranks: Vec<Result<u32>> = match route {
         FamilyRoute::PerPair => {
@@ -195,7 +204,8 @@ pub fn selmer_stats_by(
                 .collect()
         }
         FamilyRoute::Family => {
-            let pairs: Vec<(i64, i64)> = family.iter().map(|&(a, b)| (-48 * a, -1728 * b)).collect();
+            let pairs: Vec<(i64, i64)> =
+                family.iter().map(|&(a, b)| (-48 * a, -1728 * b)).collect();
             let found = classes_of_congruent_pairs(&pairs, family_height(y), progress)?;
             family
                 .par_iter()
