@@ -9,8 +9,11 @@
 //! `27R² = 48·I·a²·P − P³ − 64·J·a³` (checked symbolically in the tests of `form`) fixes
 //! `R = b³ + 8a²d − 4abc` up to sign, hence d; then `I = 12ae − 3bd + c²` fixes e, and J is
 //! checked. There is no loop over d or e. For `a = 0` (reducible classes) `I = c² − 3bd`
-//! fixes d and `J = 9bcd − 27eb² − 2c³` fixes e. The number of (a, b, c) visited is
-//! `O(K³) = O(H^{1/2})`. The classification stage ([`crate::table::classify`]) then
+//! fixes d and `J = 9bcd − 27eb² − 2c³` fixes e. The range of (a, b, c) has `O(K³) =
+//! O(H^{1/2})` points, but the c of a task are not visited one by one: the sieve of
+//! [`crate::enumerate::syzygy`] removes, by residues and 64 values of c per word operation,
+//! every c whose syzygy has no integer R, and only the survivors are evaluated exactly
+//! (`docs/family-enumeration.md` §4). The classification stage ([`crate::table::classify`]) then
 //! translates each form into the strip and keeps it when canonical, exactly as for the bulk
 //! loops, so every class is found once.
 //!
@@ -27,7 +30,7 @@
 //! ```
 
 use crate::enumerate::bounds::{c_window_a0, Bounds, Task};
-use crate::enumerate::syzygy::{solutions, solutions_reference, syzygy_cubic};
+use crate::enumerate::syzygy::{solutions, syzygy_cubic};
 use crate::error::{Error, Result};
 use crate::form::{eligible, invariants_from_ij, Form};
 use rayon::prelude::*;
@@ -35,7 +38,7 @@ use rug::ops::Pow;
 use rug::Integer;
 
 /// The search refuses pairs with `H ≥ 10^MAX_HEIGHT_EXP` (its cost grows as H^{1/2}: about
-/// 32 s at 10¹⁵ on two cores, see `benches/invariants.rs`).
+/// 1 s at 10¹⁵ on one core, see `benches/invariants.rs`).
 pub const MAX_HEIGHT_EXP: u32 = 21;
 
 /// Why (I, J) has no classes at all, if so: not eligible, or Disc = 0.
@@ -58,7 +61,7 @@ pub fn refusal(i: &Integer, j: &Integer) -> Option<String> {
 }
 
 /// Which loop over c a search runs: the fast one of [`crate::enumerate::syzygy`] or the
-/// plain reference loop (one big-integer evaluation per c), kept as the oracle of the
+/// plain reference loop (one exact evaluation per c, without the sieve), the oracle of the
 /// tests.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Route {
@@ -83,11 +86,7 @@ fn candidates(
         let (c_lo, c_hi) = bounds.c_range(task.a, task.b);
         let cubic = syzygy_cubic(i, j, a, b).ok_or_else(ovf)?;
         let mut found = Vec::new();
-        match route {
-            Route::Fast => solutions(&cubic, c_lo, c_hi, &mut found),
-            Route::Reference => solutions_reference(&cubic, c_lo, c_hi, &mut found),
-        }
-        .ok_or_else(ovf)?;
+        solutions(&cubic, (c_lo, c_hi), route == Route::Fast, &mut found).ok_or_else(ovf)?;
         let a2 = a * a;
         for (c, r) in found {
             let c = i128::from(c);
@@ -174,7 +173,7 @@ pub fn forms_with_invariants_by(
     if h4 >= Integer::from(4) * Integer::from(10).pow(MAX_HEIGHT_EXP) {
         return Err(Error::TooLarge(format!(
             "(I, J) = ({i}, {j}) has height H ≥ 1e{MAX_HEIGHT_EXP}: the search by invariants costs \
-             about H^(1/2) steps (some 9 hours per pair at 1e21 on two cores), so it is refused \
+             about H^(1/2) steps (some 20 minutes per pair at 1e21 on one core), so it is refused \
              above that"
         )));
     }

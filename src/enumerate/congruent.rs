@@ -116,6 +116,7 @@ pub fn for_each_congruent(hb: &Bounds, task: Task, mut emit: impl FnMut([i64; 5]
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::form::Form;
 
     #[test]
     fn progressions_are_the_exact_solution_sets() {
@@ -150,13 +151,8 @@ mod tests {
         let (mut bulk, mut ours) = (Vec::new(), Vec::new());
         for task in Task::all(&hb, false) {
             task.for_each(&hb, |f| {
-                let [a, b, c, d, e] = f.map(i128::from);
-                let i = 12 * a * e - 3 * b * d + c * c;
-                let j = 72 * a * c * e + 9 * b * c * d
-                    - 27 * a * d * d
-                    - 27 * e * b * b
-                    - 2 * c * c * c;
-                if i % 48 == 0 && j % 1728 == 0 {
+                let inv = Form::<i128>::new(f.map(i128::from)).invariants().unwrap();
+                if inv.i % 48 == 0 && inv.j % 1728 == 0 {
                     bulk.push(f);
                 }
             });

@@ -7,17 +7,18 @@
 //! ([`crate::enumerate::squares::sieve`]: one period of `v mod m` per modulus m ≤ 64,
 //! computed by forward differences mod m on 64-bit words, ANDed 64 values of c at a time),
 //! so that the cost per c is a few word operations per modulus, shared by 64 values of c.
-//! Only the c that survive all 18 moduli (a fraction of about 10⁻⁴) are evaluated exactly:
-//! by Horner's rule on checked `i128`, or on [`rug::Integer`] when that overflows, followed
-//! by an exact integer square root. No step can overflow silently: the residue arithmetic
-//! stays below `2·64²`, the exact evaluation is checked.
+//! Only the c that survive all 18 moduli (few: each odd prime keeps about half) are
+//! evaluated exactly: by Horner's rule on checked `i128`, or on [`rug::Integer`] when that
+//! overflows, followed by an exact integer square root. No step can overflow silently: the
+//! residue arithmetic stays below `2·64²` (`docs/family-enumeration.md` §4), the exact
+//! evaluation is checked.
 //!
 //! ```
 //! use qorbits::enumerate::syzygy::{syzygy_cubic, solutions};
 //! // (a, b) = (1, 0), (I, J) = (10, −29): every c with 27R² = v(c) solvable.
 //! let cubic = syzygy_cubic(10, -29, 1, 0).unwrap();
 //! let mut out = Vec::new();
-//! solutions(&cubic, -40, 40, &mut out).unwrap();
+//! solutions(&cubic, (-40, 40), true, &mut out).unwrap();
 //! for &(c, r) in &out {
 //!     let p = 8 * c as i128;
 //!     assert_eq!(27 * r * r, 48 * 10 * p - p * p * p + 64 * 29);
@@ -104,14 +105,16 @@ fn exact_root(cubic: &SyzygyCubic, c: i64) -> Result<Option<i128>, ()> {
     }
 }
 
-/// Every `(c, R)` with `c_lo ≤ c ≤ c_hi`, `R ≥ 0` and `27R² = v(c)`, in increasing c: the
-/// residue sieve of [`crate::enumerate::squares`], then an exact test of each survivor.
-/// `None` if a solution has R beyond i128 (then nothing is claimed about the task).
+/// Every `(c, R)` with `c_lo ≤ c ≤ c_hi`, `R ≥ 0` and `27R² = v(c)`, in increasing c: with
+/// `sieved`, the residue sieve of [`crate::enumerate::squares`] and an exact test of each
+/// survivor; without, the plain loop — an exact test of every c, the oracle the tests
+/// compare the sieve with. `None` if a solution has R beyond i128 (then nothing is claimed
+/// about the task).
 #[must_use]
 pub fn solutions(
     cubic: &SyzygyCubic,
-    c_lo: i64,
-    c_hi: i64,
+    (c_lo, c_hi): (i64, i64),
+    sieved: bool,
     out: &mut Vec<(i64, i128)>,
 ) -> Option<()> {
     if c_lo > c_hi {
@@ -122,7 +125,9 @@ pub fn solutions(
     if len % 64 != 0 {
         *bits.last_mut().expect("len > 0") = (1u64 << (len % 64)) - 1;
     }
-    sieve(&cubic.k, c_lo, &mut bits);
+    if sieved {
+        sieve(&cubic.k, c_lo, &mut bits);
+    }
     for (w, &word) in bits.iter().enumerate() {
         let mut word = word;
         while word != 0 {
@@ -136,27 +141,10 @@ pub fn solutions(
     Some(())
 }
 
-/// The plain loop: one exact big-integer evaluation and square test per c. The fallback
-/// beyond i128, and the oracle the tests compare [`solutions`] with; `None` if some R does
-/// not fit i128.
-#[must_use]
-pub fn solutions_reference(
-    cubic: &SyzygyCubic,
-    c_lo: i64,
-    c_hi: i64,
-    out: &mut Vec<(i64, i128)>,
-) -> Option<()> {
-    for c in c_lo..=c_hi {
-        if let Some(r) = exact_root(cubic, c).ok()? {
-            out.push((c, r));
-        }
-    }
-    Some(())
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::form::Form;
 
     #[test]
     fn the_sieve_and_the_plain_loop_agree() {
@@ -179,18 +167,14 @@ mod tests {
                     next(scale),
                     next(scale),
                 ];
-                let [a, b, c, d, e] = f.map(i128::from);
-                let i = 12 * a * e - 3 * b * d + c * c;
-                let j = 72 * a * c * e + 9 * b * c * d
-                    - 27 * a * d * d
-                    - 27 * e * b * b
-                    - 2 * c * c * c;
-                let cubic = syzygy_cubic(i, j, a, b).unwrap();
+                let [a, b, c, d, _] = f.map(i128::from);
+                let inv = Form::<i128>::new(f.map(i128::from)).invariants().unwrap();
+                let cubic = syzygy_cubic(inv.i, inv.j, a, b).unwrap();
                 let (lo, hi) = (f[2] - 3000, f[2] + 3000);
                 let mut fast = Vec::new();
-                solutions(&cubic, lo, hi, &mut fast).unwrap();
+                solutions(&cubic, (lo, hi), true, &mut fast).unwrap();
                 let mut plain = Vec::new();
-                solutions_reference(&cubic, lo, hi, &mut plain).unwrap();
+                solutions(&cubic, (lo, hi), false, &mut plain).unwrap();
                 assert_eq!(fast, plain, "{f:?}");
                 // R = b³ + 8a²d − 4abc at the form's own c.
                 let r = (b.pow(3) + 8 * a * a * d - 4 * a * b * c).abs();
