@@ -121,17 +121,6 @@ pub fn classes_of_congruent_pairs(
     height: i128,
     progress: &dyn Progress,
 ) -> Result<Vec<Pair>> {
-    classes_of_congruent_pairs_with(pairs, height, progress, true)
-}
-
-/// [`classes_of_congruent_pairs`] with the local data left out when `with_local` is false
-/// (for benchmarks, which measure its share; such rows have no Selmer grouping).
-pub fn classes_of_congruent_pairs_with(
-    pairs: &[(i64, i64)],
-    height: i128,
-    progress: &dyn Progress,
-    with_local: bool,
-) -> Result<Vec<Pair>> {
     let bounds = Bounds::for_height(height)?;
     let mut index = HashMap::new();
     for (k, &(i, j)) in pairs.iter().enumerate() {
@@ -146,7 +135,7 @@ pub fn classes_of_congruent_pairs_with(
     }
     let what = Annotation {
         include_reducible: false,
-        with_local,
+        with_local: true,
     };
     let tasks = Task::all(&bounds, false);
     progress.start("enumerating", tasks.len() as u64);
