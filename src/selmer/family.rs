@@ -124,8 +124,9 @@ pub enum FamilyRoute {
 
 /// The height bound of the pairs of the family below Y: `H(−48A, −1728B) =
 /// 27648·max(4|A|³, 27B²)`, since `48³ = 4·27648` and `1728²/4 = 27·27648`.
+/// Saturates beyond i128, where the enumeration refuses the height anyway.
 pub fn family_height(y: i128) -> i128 {
-    27_648 * y
+    27_648i128.saturating_mul(y)
 }
 
 /// Measured costs (seconds, one thread, `cargo bench --bench selmer`, see
@@ -135,10 +136,10 @@ const SECONDS_PER_TASK: f64 = 2.0e-6;
 const SECONDS_PER_C: f64 = 5.0e-10;
 const SECONDS_PER_K4: f64 = 2.0e-7;
 
-/// The route with the smaller modelled cost for the family below Y (its curves given): the searches cost
-/// `Σ_curves (2.37·K_E²·t_task + 47·K_E³·t_c)` with `K_E = H(E)^{1/6}` (2.37·K² tasks and
-/// 47·K³ values of c per search, counted in `docs/family-enumeration.md` §5); the family
-/// enumeration `K⁴·t_K4` for the largest K.
+/// The route with the smaller modelled cost for the family below Y (its curves given): the
+/// searches cost `Σ_curves (2.37·K_E²·t_task + 47·K_E³·t_c)` with `K_E = H(E)^{1/6}`
+/// (2.37·K² tasks and 47·K³ values of c per search, counted in
+/// `docs/family-enumeration.md` §5); the family enumeration `K⁴·t_K4` for the largest K.
 pub fn cheaper_route(y: i128, family: &[(i64, i64)]) -> FamilyRoute {
     let per_pair: f64 = family
         .iter()
@@ -160,11 +161,7 @@ pub fn cheaper_route(y: i128, family: &[(i64, i64)]) -> FamilyRoute {
 /// [`cheaper_route`]; `progress` advances once per curve or once per task of the family
 /// enumeration.
 pub fn selmer_stats(y: i128, progress: &dyn Progress) -> Result<SelmerStats> {
-    if y < 1 {
-        return Err(Error::Input(format!(
-            "the height bound must be positive, not {y}"
-        )));
-    }
+    positive(y)?;
     let family = short_family(y);
     let route = cheaper_route(y, &family);
     stats_of(y, family, route, progress)
@@ -176,12 +173,17 @@ pub fn selmer_stats_by(
     route: FamilyRoute,
     progress: &dyn Progress,
 ) -> Result<SelmerStats> {
+    positive(y)?;
+    stats_of(y, short_family(y), route, progress)
+}
+
+fn positive(y: i128) -> Result<()> {
     if y < 1 {
         return Err(Error::Input(format!(
             "the height bound must be positive, not {y}"
         )));
     }
-    stats_of(y, short_family(y), route, progress)
+    Ok(())
 }
 
 fn stats_of(
