@@ -7,7 +7,7 @@
 //! ([`crate::enumerate::squares::sieve`]: one period of `v mod m` per modulus m ≤ 64,
 //! computed by forward differences mod m on 64-bit words, ANDed 64 values of c at a time),
 //! so that the cost per c is a few word operations per modulus, shared by 64 values of c.
-//! Only the c that survive all 18 moduli (few: each odd prime keeps about half) are
+//! Only the c that survive the moduli (few: each odd prime keeps about half) are
 //! evaluated exactly: by Horner's rule on checked `i128`, or on [`rug::Integer`] when that
 //! overflows, followed by an exact integer square root. No step can overflow silently: the
 //! residue arithmetic stays below `2·64²` (`docs/family-enumeration.md` §4), the exact
