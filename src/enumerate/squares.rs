@@ -110,10 +110,11 @@ pub fn sieve(k: &[i128; 4], c_lo: i64, bits: &mut [u64]) {
     sieve_with(k, c_lo, bits, true)
 }
 
-/// An exact test of a survivor costs about as much as 16 steps of a period or 32 word
-/// operations (measured on the search at H ≈ 10¹²; a rule of thumb, common practice): a
-/// modulus m, which keeps about half of the c, is worth its `m` steps and `words/2` when
-/// the survivors it is expected to remove cost more.
+/// An exact test of a survivor (i128 Horner, division, square root) is taken to cost about
+/// as much as 16 steps of a period or 32 word operations (an estimate, a rule of thumb with
+/// no source; it moves only work between the sieve and the exact test): a modulus m, which
+/// keeps about half of the c, is worth its `m` steps and `words/2` when the survivors it is
+/// expected to remove cost more.
 fn worth_another(bits: &[u64], m: u64) -> bool {
     let survivors: u64 = bits.iter().map(|w| u64::from(w.count_ones())).sum();
     8 * survivors > m + bits.len() as u64 / 2
