@@ -129,9 +129,10 @@ pub fn family_height(y: i128) -> i128 {
     27_648i128.saturating_mul(y)
 }
 
-/// Measured costs (seconds, one thread, `cargo bench --bench selmer`, see
-/// `docs/family-enumeration.md` §5): per task and per value of c of a search by invariants,
-/// and per `K⁴` of the family enumeration (`K = (27648·Y)^{1/6}`).
+/// Costs in seconds on one thread, fitted to timings of the search by invariants and of the
+/// family loops on the development machine (`docs/family-enumeration.md` §5): per task and
+/// per value of c of a search, and per `K⁴` of the family enumeration
+/// (`K = (27648·Y)^{1/6}`).
 const SECONDS_PER_TASK: f64 = 2.0e-6;
 const SECONDS_PER_C: f64 = 5.0e-10;
 const SECONDS_PER_K4: f64 = 2.0e-7;
