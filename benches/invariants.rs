@@ -6,6 +6,17 @@ use qorbits::table::pipeline::classes_with_invariants;
 use rug::Integer;
 use std::time::Instant;
 
+/// CPU seconds of this process so far (all threads; `/proc/self/stat` fields 14 and 15 at
+/// 100 ticks per second, Linux's usual `CLK_TCK`): on a shared machine the wall time
+/// depends on other users' load, the CPU time much less.
+fn cpu_seconds() -> f64 {
+    let stat = std::fs::read_to_string("/proc/self/stat").expect("Linux /proc");
+    let f: Vec<&str> = stat[stat.rfind(')').expect("(comm)") + 2..]
+        .split_whitespace()
+        .collect();
+    (f[11].parse::<f64>().expect("utime") + f[12].parse::<f64>().expect("stime")) / 100.0
+}
+
 fn main() {
     let max: u32 = std::env::var("QORBITS_BENCH_MAX")
         .ok()
@@ -23,11 +34,12 @@ fn main() {
             continue;
         }
         for reducible in [false, true] {
-            let t = Instant::now();
+            let (t, cpu) = (Instant::now(), cpu_seconds());
             let rows =
                 classes_with_invariants(&Integer::from(i), &Integer::from(j), reducible).unwrap();
             let s = t.elapsed().as_secs_f64();
-            println!("H ≈ 1e{k:<3} (I, J) = ({i}, {j})  reducible {reducible:<5}  {:>3} classes  {s:>8.3} s", rows.classes.len());
+            let cpu = cpu_seconds() - cpu;
+            println!("H ≈ 1e{k:<3} (I, J) = ({i}, {j})  reducible {reducible:<5}  {:>3} classes  {s:>8.3} s wall  {cpu:>7.2} s CPU", rows.classes.len());
             if !reducible {
                 pts.push(((i as f64).powi(3).ln(), s.ln()));
             }

@@ -1,12 +1,14 @@
 //! Cross-validation of the two enumerators: the search by invariants returns exactly the
 //! builder's rows (every column, local data and labels included) for thousands of pairs,
 //! nothing for eligible pairs absent from the table, and at H ≈ 10¹² every class it finds
-//! is recognised again from random GL2(Z) transforms.
+//! is recognised again from random GL2(Z) transforms. At heights up to 10¹² the fast loop
+//! over c (residue sieve) returns exactly the forms of the plain loop (one exact evaluation
+//! per c), reducible forms included.
 
 mod common;
 
 use common::{random_gl2, Rng};
-use qorbits::enumerate::by_invariants::refusal;
+use qorbits::enumerate::by_invariants::{forms_with_invariants_by, refusal, Route};
 use qorbits::form::canonical::canonical;
 use qorbits::form::{eligible, invariants_from_ij, Form};
 use qorbits::progress::Silent;
@@ -138,4 +140,35 @@ fn ineligible_and_degenerate_pairs_are_refused() {
         .contains("Disc = 0"));
     assert!(classes_with_invariants(&Integer::from(9), &Integer::from(54), true).is_err());
     assert!(refusal(&Integer::from(10), &Integer::from(-29)).is_none());
+}
+
+#[test]
+fn the_fast_loop_finds_the_forms_of_the_plain_loop_up_to_1e12() {
+    let mut rng = Rng(1e12 as u64);
+    let mut pairs = vec![
+        (9999i64, -54i64),
+        (-48 * 29, -1728 * 60),
+        (-48 * 7, 1728 * 13),
+    ];
+    while pairs.len() < 12 {
+        // Random forms with H from 10⁶ to 10¹¹: their own pair has at least one class.
+        let f = Form::<Integer>::from_i64(std::array::from_fn(|_| rng.range(12)));
+        let inv = f.invariants().unwrap();
+        let h = inv.h4.to_f64() / 4.0;
+        if inv.disc != 0 && (1e6..1e11).contains(&h) {
+            pairs.push((inv.i.to_i64().unwrap(), inv.j.to_i64().unwrap()));
+        }
+    }
+    let mut total = 0;
+    for (n, &(i, j)) in pairs.iter().enumerate() {
+        let (bi, bj) = (Integer::from(i), Integer::from(j));
+        let reducible = n % 2 == 0;
+        let mut fast = forms_with_invariants_by(&bi, &bj, reducible, Route::Fast).unwrap();
+        let mut plain = forms_with_invariants_by(&bi, &bj, reducible, Route::Reference).unwrap();
+        fast.sort();
+        plain.sort();
+        assert_eq!(fast, plain, "(I, J) = ({i}, {j})");
+        total += plain.len();
+    }
+    assert!(total >= 12, "{total} forms");
 }

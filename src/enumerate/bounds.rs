@@ -79,6 +79,15 @@ impl Bounds {
         }
     }
 
+    /// Whether (a, b) with `a ≠ 0` and b in the window `−2|a| < b ≤ 2|a|` is a task of
+    /// [`Task::all`] for these bounds: `|a| ≤ C0·K/y_min²` and `y_max(a, b) ≥ y_min`, both
+    /// widened by the slack as there.
+    pub fn holds_task(&self, a: i64, b: i64) -> bool {
+        let ym = y_min();
+        let a_max = (C[0] * self.k / (ym * ym) * (1.0 + SLACK)).floor() as i64;
+        a != 0 && a.abs() <= a_max && self.y_max(a, b) * (1.0 + SLACK) >= ym
+    }
+
     /// `y_max` for a task: the imaginary part of the point of a canonical form with these
     /// leading coefficients is at most this (from `|a| ≤ C0·K/y0²`, or `|b| ≤ C1·K/y0` when
     /// a = 0).
@@ -115,6 +124,60 @@ impl Bounds {
         let (u, v) = ((m2 - cf) / (3.0 * bf), (-m2 - cf) / (3.0 * bf));
         (u.min(v), u.max(v))
     }
+}
+
+/// The ranges of d for a task with `a ≠ 0` and one c, below the height of a bulk
+/// enumeration (`H < X`, [`Bounds::for_height`]): at most two ranges, in increasing order.
+/// Every candidate of the bulk loops with these (a, b, c) has its d in one of them
+/// (`docs/family-enumeration.md` §2): d from `|g3| ≤ C3·K·y_max` over the interval of
+/// [`Bounds::x_interval`] (`docs/enumeration.md` §6), and `R = b³ + 8a²d − 4abc` from the
+/// syzygy `27R² = 48·I·a²·P − P³ − 64·J·a³` with `|I| ≤ I_max`, `|J| ≤ J_max`:
+/// `−P³ − m ≤ 27R² ≤ −P³ + m`, `m = 48·I_max·a²·|P| + 64·J_max·|a|³`, so |R| lies in
+/// `[r_lo, r_hi]` — an annulus, much thinner than the disc `|R| ≤ r_hi` when −P³ ≫ m.
+pub fn d_ranges(hb: &Bounds, a: i64, b: i64, c: i128) -> Vec<(i128, i128)> {
+    let y_max = hb.y_max(a, b) * (1.0 + SLACK);
+    let (x_lo, x_hi) = hb.x_interval(a, b);
+    let (ai, bi) = (i128::from(a), i128::from(b));
+    // d = g3 − 2·x0·c − 3·x0²·b − 4·x0³·a.
+    let poly = [0.0, -2.0 * c as f64, -3.0 * b as f64, -4.0 * a as f64];
+    let (rlo, rhi) = poly_range(poly, x_lo, x_hi);
+    let g = C[3] * hb.k * y_max;
+    let (g_lo, g_hi) = int_range(rlo - g, rhi + g);
+    let p = 8 * ai * c - 3 * bi * bi;
+    let m = 48 * hb.i_max * ai * ai * p.abs() + 64 * hb.j_max * ai.abs().pow(3);
+    let (top, bottom) = (m - p.pow(3), -m - p.pow(3));
+    if top < 0 {
+        return Vec::new();
+    }
+    // r_hi = ⌊√⌊top/27⌋⌋; r_lo = the least r ≥ 0 with 27r² ≥ bottom.
+    let r_hi = Int::isqrt(&(top / 27)).expect("non-negative");
+    let r_lo = if bottom <= 0 {
+        0
+    } else {
+        let q = ceil_div(bottom, 27);
+        let r = Int::isqrt(&q).expect("positive");
+        if r * r == q {
+            r
+        } else {
+            r + 1
+        }
+    };
+    // R = b³ + 8a²d − 4abc: each range of R gives one of d.
+    let (k, off) = (8 * ai * ai, bi.pow(3) - 4 * ai * bi * c);
+    let rs = if r_lo == 0 {
+        vec![(-r_hi, r_hi)]
+    } else {
+        vec![(-r_hi, -r_lo), (r_lo, r_hi)]
+    };
+    let mut out: Vec<(i128, i128)> = rs
+        .into_iter()
+        .filter(|(lo, hi)| lo <= hi)
+        .map(|(lo, hi)| linear_range(k, off, lo, hi))
+        .map(|(lo, hi)| (lo.max(i128::from(g_lo)), hi.min(i128::from(g_hi))))
+        .filter(|(lo, hi)| lo <= hi)
+        .collect();
+    out.sort();
+    out
 }
 
 /// For a = 0 the translation `x ↦ x + ky` changes c by `3bk`: the window of c, one value

@@ -9,8 +9,11 @@
 //! `27R² = 48·I·a²·P − P³ − 64·J·a³` (checked symbolically in the tests of `form`) fixes
 //! `R = b³ + 8a²d − 4abc` up to sign, hence d; then `I = 12ae − 3bd + c²` fixes e, and J is
 //! checked. There is no loop over d or e. For `a = 0` (reducible classes) `I = c² − 3bd`
-//! fixes d and `J = 9bcd − 27eb² − 2c³` fixes e. The number of (a, b, c) visited is
-//! `O(K³) = O(H^{1/2})`. The classification stage ([`crate::table::classify`]) then
+//! fixes d and `J = 9bcd − 27eb² − 2c³` fixes e. The range of (a, b, c) has `O(K³) =
+//! O(H^{1/2})` points, but the c of a task are not visited one by one: the sieve of
+//! [`crate::enumerate::syzygy`] removes, by residues and 64 values of c per word operation,
+//! every c whose syzygy has no integer R, and only the survivors are evaluated exactly
+//! (`docs/family-enumeration.md` §4). The classification stage ([`crate::table::classify`]) then
 //! translates each form into the strip and keeps it when canonical, exactly as for the bulk
 //! loops, so every class is found once.
 //!
@@ -26,8 +29,8 @@
 //! }
 //! ```
 
-use crate::arith::int::Int;
 use crate::enumerate::bounds::{c_window_a0, Bounds, Task};
+use crate::enumerate::syzygy::{solutions, syzygy_cubic};
 use crate::error::{Error, Result};
 use crate::form::{eligible, invariants_from_ij, Form};
 use rayon::prelude::*;
@@ -35,7 +38,7 @@ use rug::ops::Pow;
 use rug::Integer;
 
 /// The search refuses pairs with `H ≥ 10^MAX_HEIGHT_EXP` (its cost grows as H^{1/2}: about
-/// 32 s at 10¹⁵ on two cores, see `benches/invariants.rs`).
+/// 1 s at 10¹⁵ on one core, see `benches/invariants.rs`).
 pub const MAX_HEIGHT_EXP: u32 = 21;
 
 /// Why (I, J) has no classes at all, if so: not eligible, or Disc = 0.
@@ -57,46 +60,50 @@ pub fn refusal(i: &Integer, j: &Integer) -> Option<String> {
     None
 }
 
+/// Which loop over c a search runs: the fast one of [`crate::enumerate::syzygy`] or the
+/// plain reference loop (one exact evaluation per c, without the sieve), the oracle of the
+/// tests.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Route {
+    /// Forward differences on machine integers and the residue filter.
+    Fast,
+    /// One exact evaluation and square test per c.
+    Reference,
+}
+
 /// Candidate forms with invariants exactly (I, J), one per translation class, for one task.
 fn candidates(
     i: i128,
     j: i128,
     bounds: &Bounds,
     task: Task,
+    route: Route,
     out: &mut Vec<[i128; 5]>,
 ) -> Result<()> {
     let ovf = || Error::TooLarge(format!("(I, J) = ({i}, {j}) is too large for the search"));
     let (a, b) = (i128::from(task.a), i128::from(task.b));
     if a != 0 {
         let (c_lo, c_hi) = bounds.c_range(task.a, task.b);
+        let cubic = syzygy_cubic(i, j, a, b).ok_or_else(ovf)?;
+        let mut found = Vec::new();
+        solutions(&cubic, (c_lo, c_hi), route == Route::Fast, &mut found).ok_or_else(ovf)?;
         let a2 = a * a;
-        for c in c_lo as i128..=c_hi as i128 {
-            let p = 8 * a * c - 3 * b * b;
-            // 27R² = 48·I·a²·P − P³ − 64·J·a³
-            let rhs = (|| {
-                let t1 = 48i128.checked_mul(i)?.checked_mul(a2)?.checked_mul(p)?;
-                let t2 = p.checked_mul(p)?.checked_mul(p)?;
-                let t3 = 64i128.checked_mul(j)?.checked_mul(a2)?.checked_mul(a)?;
-                t1.checked_sub(t2)?.checked_sub(t3)
-            })()
-            .ok_or_else(ovf)?;
-            if rhs < 0 || rhs % 27 != 0 {
-                continue;
-            }
-            let s = rhs / 27;
-            let r = Int::isqrt(&s).expect("non-negative");
-            if r * r != s {
-                continue;
-            }
+        for (c, r) in found {
+            let c = i128::from(c);
             for r in if r == 0 { vec![0] } else { vec![r, -r] } {
                 // R = b³ + 8a²d − 4abc
-                let num = r - b * b * b + 4 * a * b * c;
+                let num =
+                    (|| r.checked_sub(b.pow(3))?.checked_add(4 * a * b * c))().ok_or_else(ovf)?;
                 if num % (8 * a2) != 0 {
                     continue;
                 }
                 let d = num / (8 * a2);
                 // I = 12ae − 3bd + c²
-                let ne = i - c * c + 3 * b * d;
+                let ne = (|| {
+                    i.checked_sub(c * c)?
+                        .checked_add(3i128.checked_mul(b)?.checked_mul(d)?)
+                })()
+                .ok_or_else(ovf)?;
                 if ne % (12 * a) != 0 {
                     continue;
                 }
@@ -140,6 +147,16 @@ pub fn forms_with_invariants(
     j: &Integer,
     include_reducible: bool,
 ) -> Result<Vec<[i128; 5]>> {
+    forms_with_invariants_by(i, j, include_reducible, Route::Fast)
+}
+
+/// [`forms_with_invariants`] with the loop over c chosen: the tests compare the two routes.
+pub fn forms_with_invariants_by(
+    i: &Integer,
+    j: &Integer,
+    include_reducible: bool,
+    route: Route,
+) -> Result<Vec<[i128; 5]>> {
     if let Some(why) = refusal(i, j) {
         return Err(Error::Input(why));
     }
@@ -156,7 +173,7 @@ pub fn forms_with_invariants(
     if h4 >= Integer::from(4) * Integer::from(10).pow(MAX_HEIGHT_EXP) {
         return Err(Error::TooLarge(format!(
             "(I, J) = ({i}, {j}) has height H ≥ 1e{MAX_HEIGHT_EXP}: the search by invariants costs \
-             about H^(1/2) steps (some 9 hours per pair at 1e21 on two cores), so it is refused \
+             about H^(1/2) steps (some 20 minutes per pair at 1e21 on one core), so it is refused \
              above that"
         )));
     }
@@ -166,7 +183,7 @@ pub fn forms_with_invariants(
         .par_iter()
         .map(|&task| {
             let mut found = Vec::new();
-            candidates(ii, jj, &bounds, task, &mut found)?;
+            candidates(ii, jj, &bounds, task, route, &mut found)?;
             Ok(found)
         })
         .collect();

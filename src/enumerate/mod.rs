@@ -6,4 +6,7 @@
 pub mod bounds;
 pub mod bulk;
 pub mod by_invariants;
+pub mod congruent;
 pub mod cost;
+pub mod squares;
+pub mod syzygy;

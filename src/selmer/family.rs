@@ -1,10 +1,17 @@
 //! The family of short Weierstrass curves of `selmer-stats` and the average size of the
 //! 2-Selmer group over it, by height bins.
+//!
+//! The classes of the family's pairs `(I, J) = (−48A, −1728B)` come by one of two routes
+//! with the same result: one search by invariants per curve, or one enumeration of every
+//! form with `48 | I`, `1728 | J` below the family's largest height `H < 27648·Y`
+//! ([`crate::table::pipeline::classes_of_congruent_pairs`]). [`cheaper_route`] picks the
+//! cheaper by the cost model of `docs/family-enumeration.md` §5.
 
 use crate::arith::poly::integer_roots;
 use crate::error::{Error, Result};
 use crate::progress::Progress;
-use crate::selmer::{two_selmer, Curve};
+use crate::selmer::{selmer_of_pair, two_selmer, Curve};
+use crate::table::pipeline::classes_of_congruent_pairs;
 use rayon::prelude::*;
 use rug::Integer;
 
@@ -106,26 +113,119 @@ pub struct SelmerStats {
     pub bins: Vec<SelmerBin>,
 }
 
+/// How [`selmer_stats_by`] finds the classes of the family's pairs.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FamilyRoute {
+    /// One search by invariants per curve.
+    PerPair,
+    /// One enumeration of every form with `48 | I`, `1728 | J` and `H < 27648·Y`.
+    Family,
+}
+
+/// The height bound of the pairs of the family below Y: `H(−48A, −1728B) =
+/// 27648·max(4|A|³, 27B²)`, since `48³ = 4·27648` and `1728²/4 = 27·27648`.
+/// Saturates beyond i128, where the enumeration refuses the height anyway.
+pub fn family_height(y: i128) -> i128 {
+    27_648i128.saturating_mul(y)
+}
+
+/// Costs in seconds on one thread, fitted to timings of the search by invariants and of the
+/// family loops on the development machine (`docs/family-enumeration.md` §5): per task and
+/// per value of c of a search, and per `K⁴` of the family enumeration
+/// (`K = (27648·Y)^{1/6}`).
+const SECONDS_PER_TASK: f64 = 2.0e-6;
+const SECONDS_PER_C: f64 = 5.0e-10;
+const SECONDS_PER_K4: f64 = 2.0e-7;
+
+/// The route with the smaller modelled cost for the family below Y (its curves given): the
+/// searches cost `Σ_curves (2.37·K_E²·t_task + 47·K_E³·t_c)` with `K_E = H(E)^{1/6}`
+/// (2.37·K² tasks and 47·K³ values of c per search, counted in
+/// `docs/family-enumeration.md` §5); the family enumeration `K⁴·t_K4` for the largest K.
+pub fn cheaper_route(y: i128, family: &[(i64, i64)]) -> FamilyRoute {
+    let per_pair: f64 = family
+        .iter()
+        .map(|&(a, b)| {
+            let k = (27_648.0 * short_height(a, b) as f64).powf(1.0 / 6.0);
+            2.37 * k * k * SECONDS_PER_TASK + 47.0 * k.powi(3) * SECONDS_PER_C
+        })
+        .sum();
+    let k = (family_height(y) as f64).powf(1.0 / 6.0);
+    if k.powi(4) * SECONDS_PER_K4 < per_pair {
+        FamilyRoute::Family
+    } else {
+        FamilyRoute::PerPair
+    }
+}
+
 /// The 2-Selmer rank of every curve of [`short_family`]`(y)`, in parallel on the current
-/// rayon pool (the result does not depend on the number of threads); `progress` advances
-/// once per curve.
+/// rayon pool (the result does not depend on the number of threads), by the route of
+/// [`cheaper_route`]; `progress` advances once per curve or once per task of the family
+/// enumeration.
 pub fn selmer_stats(y: i128, progress: &dyn Progress) -> Result<SelmerStats> {
+    positive(y)?;
+    let family = short_family(y);
+    let route = cheaper_route(y, &family);
+    stats_of(y, family, route, progress)
+}
+
+/// An estimate of the seconds [`selmer_stats`] takes on one thread, without building the
+/// family: `34.7 s · (Y/10⁶)^0.964`, fitted to whole runs at Y = 10⁵, 10⁶ and 10⁷ on the
+/// development machine (3.7 s, 34.7 s and 312 s of CPU; `cargo bench --bench selmer`),
+/// which include local data and the grouping over Q besides the loops. A rule of thumb for
+/// the estimate printed before long work, not a bound.
+pub fn estimated_seconds(y: i128) -> f64 {
+    34.7 * (y.max(1) as f64 / 1e6).powf(0.964)
+}
+
+/// [`selmer_stats`] by the route given (the tests compare the two).
+pub fn selmer_stats_by(
+    y: i128,
+    route: FamilyRoute,
+    progress: &dyn Progress,
+) -> Result<SelmerStats> {
+    positive(y)?;
+    stats_of(y, short_family(y), route, progress)
+}
+
+fn positive(y: i128) -> Result<()> {
     if y < 1 {
         return Err(Error::Input(format!(
             "the height bound must be positive, not {y}"
         )));
     }
-    let family = short_family(y);
-    progress.start("curves", family.len() as u64);
-    let ranks: Vec<Result<u32>> = family
-        .par_iter()
-        .map(|&(a, b)| {
-            let e = Curve::short(Integer::from(a), Integer::from(b))?;
-            let r = two_selmer(&e).map(|s| s.rank);
-            progress.advance(1);
-            r
-        })
-        .collect();
+    Ok(())
+}
+
+fn stats_of(
+    y: i128,
+    family: Vec<(i64, i64)>,
+    route: FamilyRoute,
+    progress: &dyn Progress,
+) -> Result<SelmerStats> {
+    let curve = |&(a, b): &(i64, i64)| Curve::short(Integer::from(a), Integer::from(b));
+    let ranks: Vec<Result<u32>> = match route {
+        FamilyRoute::PerPair => {
+            progress.start("curves", family.len() as u64);
+            family
+                .par_iter()
+                .map(|ab| {
+                    let r = two_selmer(&curve(ab)?).map(|s| s.rank);
+                    progress.advance(1);
+                    r
+                })
+                .collect()
+        }
+        FamilyRoute::Family => {
+            let pairs: Vec<(i64, i64)> =
+                family.iter().map(|&(a, b)| (-48 * a, -1728 * b)).collect();
+            let found = classes_of_congruent_pairs(&pairs, family_height(y), progress)?;
+            family
+                .par_iter()
+                .zip(found.par_iter())
+                .map(|(ab, pair)| selmer_of_pair(&curve(ab)?, pair).map(|s| s.rank))
+                .collect()
+        }
+    };
     let empty = |lo, hi| SelmerBin {
         lo,
         hi,

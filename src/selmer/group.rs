@@ -4,7 +4,7 @@
 use crate::error::{Error, Result};
 use crate::selmer::Curve;
 use crate::table::pipeline::classes_with_invariants;
-use crate::table::row::ClassRow;
+use crate::table::row::{ClassRow, Pair};
 use rug::Integer;
 
 /// The 2-Selmer group of a curve.
@@ -31,8 +31,23 @@ pub struct Selmer {
 /// The 2-Selmer group of `curve`.
 pub fn two_selmer(curve: &Curve) -> Result<Selmer> {
     let (i, j) = curve.quartic_invariants();
+    let pair = classes_with_invariants(&i, &j, curve.two_torsion_rank() > 0)?;
+    selmer_of_pair(curve, &pair)
+}
+
+/// The 2-Selmer group of `curve` from the classes of its pair `(I, J) = (c4, 2c6)`, found
+/// by any route: irreducible classes only when E(Q)[2] is trivial, all classes otherwise.
+pub fn selmer_of_pair(curve: &Curve, pair: &Pair) -> Result<Selmer> {
+    let (i, j) = curve.quartic_invariants();
     let two_torsion_rank = curve.two_torsion_rank();
-    let pair = classes_with_invariants(&i, &j, two_torsion_rank > 0)?;
+    if (Integer::from(pair.i), Integer::from(pair.j)) != (i.clone(), j.clone()) {
+        return Err(Error::Input(format!(
+            "the classes of ({}, {}) are not those of the curve {}",
+            pair.i,
+            pair.j,
+            curve.equation()
+        )));
+    }
     let irreducible_classes = pair
         .classes
         .iter()

@@ -29,5 +29,8 @@ mod family;
 mod group;
 
 pub use curve::Curve;
-pub use family::{selmer_stats, short_family, short_height, SelmerBin, SelmerStats};
-pub use group::{two_selmer, Selmer};
+pub use family::{
+    cheaper_route, estimated_seconds, selmer_stats, selmer_stats_by, short_family, short_height,
+    FamilyRoute, SelmerBin, SelmerStats,
+};
+pub use group::{selmer_of_pair, two_selmer, Selmer};

@@ -12,8 +12,9 @@
 
 use crate::enumerate::bounds::{Bounds, Task};
 use crate::enumerate::by_invariants::forms_with_invariants;
+use crate::enumerate::congruent::for_each_congruent;
 use crate::error::{Error, Result};
-use crate::form::Form;
+use crate::form::{invariants_from_ij, Form};
 use crate::progress::Progress;
 use crate::table::classify::{classify, Annotation};
 use crate::table::group::{group_rows, make_pair};
@@ -22,6 +23,7 @@ use crate::table::row::{ClassRow, Pair, Params, Table};
 use crate::table::writer::write_table;
 use rayon::prelude::*;
 use rug::Integer;
+use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 
 /// Every class with `H < height` (irreducible, or all with `include_reducible`), in table
@@ -105,6 +107,80 @@ pub fn classes_with_invariants(i: &Integer, j: &Integer, include_reducible: bool
         j.to_i64().expect("checked by the search"),
     );
     make_pair(ii, jj, rows)
+}
+
+/// The irreducible classes of many pairs at once, each with `48 | I`, `1728 | J` and
+/// `H < height` (the pairs of a family of short curves): one enumeration of every candidate
+/// with such invariants ([`for_each_congruent`]), keeping those of the pairs asked for whose
+/// (a, b, c) also lie in the ranges of the search for their own pair — so each pair gets
+/// exactly the candidates, hence the classes, of [`classes_with_invariants`] (without
+/// reducible classes). One [`Pair`] per pair asked for, in that order. Runs on the current
+/// rayon pool; `progress` advances once per task.
+pub fn classes_of_congruent_pairs(
+    pairs: &[(i64, i64)],
+    height: i128,
+    progress: &dyn Progress,
+) -> Result<Vec<Pair>> {
+    let bounds = Bounds::for_height(height)?;
+    let mut index = HashMap::new();
+    for (k, &(i, j)) in pairs.iter().enumerate() {
+        let inv = invariants_from_ij(i128::from(i), i128::from(j))
+            .filter(|inv| inv.disc != 0 && inv.h4 < 4 * height && i % 48 == 0 && j % 1728 == 0)
+            .ok_or_else(|| {
+                Error::Input(format!(
+                    "({i}, {j}) is not a pair with 48 | I, 1728 | J, Disc ≠ 0 and H < {height}"
+                ))
+            })?;
+        index.insert((i, j), (k, Bounds::for_pair(inv.h4 as f64)));
+    }
+    let what = Annotation {
+        include_reducible: false,
+        with_local: true,
+    };
+    let tasks = Task::all(&bounds, false);
+    progress.start("enumerating", tasks.len() as u64);
+    let parts: Vec<Result<Vec<(usize, ClassRow)>>> = tasks
+        .par_iter()
+        .map(|&task| {
+            let mut rows = Vec::new();
+            let mut failure = None;
+            for_each_congruent(&bounds, task, |f| {
+                let form = Form::new(f.map(i128::from));
+                let (Some(i), Some(j)) = (form.i_invariant(), form.j_invariant()) else {
+                    return;
+                };
+                let key = (i as i64, j as i64); // |I|, |J| < 2·10⁹ below H < 1e18
+                let Some(&(k, own)) = index.get(&key) else {
+                    return;
+                };
+                let (c_lo, c_hi) = own.c_range(task.a, task.b);
+                if !own.holds_task(task.a, task.b) || f[2] < c_lo || f[2] > c_hi {
+                    return;
+                }
+                match classify(&form, what) {
+                    Ok(Some(row)) => rows.push((k, row)),
+                    Ok(None) => {}
+                    Err(e) => failure = failure.take().or(Some(e)),
+                }
+            });
+            progress.advance(1);
+            failure.map_or(Ok(rows), Err)
+        })
+        .collect();
+    let mut by_pair: Vec<Vec<ClassRow>> = vec![Vec::new(); pairs.len()];
+    for part in parts {
+        for (k, row) in part? {
+            by_pair[k].push(row);
+        }
+    }
+    by_pair
+        .into_par_iter()
+        .zip(pairs.par_iter())
+        .map(|(mut rows, &(i, j))| {
+            rows.sort_by_key(ClassRow::key);
+            make_pair(i, j, rows)
+        })
+        .collect()
 }
 
 /// What [`build`] wrote.

@@ -1,15 +1,13 @@
 //! `qorbits selmer-stats`: the average size of the 2-Selmer group over the family of short
 //! Weierstrass curves below a height, by height bins.
 
-use crate::cmd::classes::SEARCH_STEPS_PER_SECOND;
 use crate::cmd::{guard_long, Jobs};
 use crate::out::emit;
 use crate::progress::Bar;
 use crate::render::{aligned, csv};
 use qorbits::arith::parse::parse_height;
-use qorbits::enumerate::cost::search_steps;
 use qorbits::error::Error;
-use qorbits::selmer::{selmer_stats, SelmerBin, SelmerStats};
+use qorbits::selmer::{estimated_seconds, selmer_stats, SelmerBin, SelmerStats};
 use qorbits::table::json;
 use serde_json::Value;
 
@@ -51,27 +49,6 @@ pub fn family(y: i128) -> String {
     )
 }
 
-/// Seconds for the family on `threads` cores with one search per curve: the searches visit
-/// about k·H^{1/2} triples at H4 = 110592·max(4|A|³, 27B²) (since (I, J) = (−48A, −1728B)),
-/// summed over the box of (A, B) by a midpoint rule (an estimate, not a bound).
-fn estimate_seconds(y: f64, threads: f64) -> f64 {
-    let k = search_steps(4e12, false) / 2e6;
-    let (amax, bmax) = ((y / 4.0).cbrt(), (y / 27.0).sqrt());
-    let n = 200;
-    let mut total = 0.0;
-    for s in 0..n {
-        for t in 0..n {
-            let a = amax * (s as f64 + 0.5) / n as f64;
-            let b = bmax * (t as f64 + 0.5) / n as f64;
-            let h = (4.0 * a * a * a).max(27.0 * b * b);
-            total += (110_592.0 * h).sqrt();
-        }
-    }
-    // Four quadrants, each cell of area (amax/n)(bmax/n) holding that many curves.
-    let steps = 4.0 * total * (amax / n as f64) * (bmax / n as f64) * k;
-    steps / SEARCH_STEPS_PER_SECOND / threads
-}
-
 fn average(b: &SelmerBin) -> Value {
     if b.curves == 0 {
         Value::Null
@@ -96,7 +73,7 @@ pub fn run(a: Args) -> Result<(), Error> {
     let threads = a.jobs.run(|| Ok(rayon::current_num_threads()))? as f64;
     guard_long(
         &format!("the 2-Selmer groups of the curves below {y}"),
-        estimate_seconds(y as f64, threads),
+        estimated_seconds(y) / threads,
         a.allow_long,
         a.quiet,
     )?;
