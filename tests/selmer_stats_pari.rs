@@ -27,7 +27,7 @@ fn numerator_and_denominator_match_pari_at_1e4() {
            print(A, \" \", B, \" \", r[2]+r[3])));\n\
          print(\"total \", n, \" \", S);\n"
     );
-    let lines = common::gp_lines(&script);
+    let lines = common::gp_lines(&script, ours.all.curves as usize + 1);
     let (total, per_curve) = lines.split_last().expect("gp printed nothing");
     let t: Vec<u64> = total
         .split_whitespace()
