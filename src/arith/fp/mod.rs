@@ -93,6 +93,10 @@ pub trait Field {
     fn is_zero(&self, a: &Self::E) -> bool;
     /// The element as an integer in `0..p`.
     fn to_integer(&self, a: &Self::E) -> Integer;
+    /// The element as a machine integer, if it fits.
+    fn to_u64(&self, a: &Self::E) -> Option<u64> {
+        self.to_integer(a).to_u64()
+    }
 
     /// Zero.
     fn zero(&self) -> Self::E {
@@ -228,6 +232,9 @@ macro_rules! machine_field {
             }
             fn to_integer(&self, a: &u64) -> Integer {
                 Integer::from(*a)
+            }
+            fn to_u64(&self, a: &u64) -> Option<u64> {
+                Some(*a)
             }
             fn legendre(&self, a: &u64) -> i8 {
                 if self.p == 2 {
