@@ -131,14 +131,21 @@ pub fn factor(n: &Integer) -> Vec<(Integer, u32)> {
 /// [`factor`] within a budget of rho iterations (about 10⁶ per second); `None` when the
 /// budget runs out (only for numbers with two large prime factors, far beyond 10²⁴).
 pub fn try_factor(n: &Integer, budget: u64) -> Option<Vec<(Integer, u32)>> {
-    if let Some(m) = n.clone().abs().to_u64() {
-        return Some(
+    match n.clone().abs().to_u64() {
+        Some(m) => Some(
             factor_u64(m)
                 .iter()
                 .map(|&(p, e)| (Integer::from(p), e))
                 .collect(),
-        );
+        ),
+        None => try_factor_big(n, budget),
     }
+}
+
+/// The big-integer algorithm of [`try_factor`] for any `n` (trial division below 10⁴, then
+/// rho); `try_factor` uses it above 2⁶⁴, and `benches/local.rs` compares it with
+/// [`factor_u64`] on numbers below 2⁶⁴.
+pub fn try_factor_big(n: &Integer, budget: u64) -> Option<Vec<(Integer, u32)>> {
     let mut budget = budget;
     let mut m = n.clone().abs();
     let mut out: Vec<(Integer, u32)> = Vec::new();

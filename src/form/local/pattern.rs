@@ -158,8 +158,8 @@ mod tests {
 
     #[test]
     fn the_expansion_is_the_discriminant() {
-        // Against Disc = (4I³ − J²)/27 of `Form::invariants` on integers, reduced mod a
-        // prime above every value (so the check is an identity of integers).
+        // Against Disc = (4I³ − J²)/27 of `Form::invariants` on integers, both reduced
+        // mod a prime near 2³²: a wrong term would show on almost every random form.
         let fld = Fp64::new(4_294_967_291);
         let mut x = 7u64;
         for _ in 0..2000 {

@@ -252,3 +252,47 @@ pub(crate) fn qp_in<T: Padic, F: Field>(fld: &F, f: &[T; 5], p: &T) -> Option<bo
     }
     search.soluble(Disc { h: g2, k: 0, j: 0 })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::arith::fp::FpWide;
+    use rug::ops::Pow;
+
+    #[test]
+    fn i128_refuses_what_does_not_fit() {
+        // h(r + p s) for p = 2⁶¹ − 1 has a coefficient p⁴ ≈ 2²⁴⁴: i128 says so, rug computes.
+        let p = (1u64 << 61) - 1;
+        let fld = &FpWide::new(p);
+        let small = Search {
+            p: i128::from(p),
+            small_p: Some(p),
+            fld,
+        };
+        fn disc<T>(h: [T; 5]) -> Disc<T> {
+            Disc { h, k: 0, j: 0 }
+        }
+        assert!(small.sub_disc(&disc([1i128; 5]), &1).is_none());
+        let big = Search {
+            p: Integer::from(p),
+            small_p: Some(p),
+            fld,
+        };
+        let h = big
+            .sub_disc(&disc([1, 1, 1, 1, 1].map(Integer::from)), &Integer::from(1))
+            .unwrap()
+            .h;
+        assert_eq!(h[4], Integer::from(p).pow(4)); // h(1 + p s) = Σ (1 + p s)^i: s⁴ term p⁴
+        assert_eq!(h[0], 5);
+        // Small values stay on i128: the valuations agree with the big ones.
+        for x in [1i128, -48, 3i128.pow(40) * 7, -(1i128 << 100)] {
+            for q in [2i128, 3, 7] {
+                assert_eq!(
+                    x.val(&q),
+                    Integer::from(x).val(&Integer::from(q)),
+                    "{x} {q}"
+                );
+            }
+        }
+    }
+}
