@@ -1,5 +1,7 @@
 //! Integer factorisation for discriminants: trial division, Pollard–Brent rho and a
-//! deterministic Miller–Rabin test.
+//! deterministic Miller–Rabin test. Numbers below 2⁶⁴ go to the allocation-free machine
+//! path [`crate::arith::factor64`] (the same answers: factorisations are unique and both
+//! primality tests are proved there); this module handles the larger ones.
 //!
 //! Primality: Miller–Rabin with the first thirteen prime bases is deterministic below
 //! 3 317 044 064 679 887 385 961 981 ≈ 3.3·10²⁴ (J. Sorenson and J. Webster, Math. Comp. 86
@@ -14,6 +16,7 @@
 //! assert_eq!(f, want);
 //! ```
 
+use crate::arith::factor64::{factor_u64, is_prime_u64};
 use rug::Integer;
 
 const BASES: [u32; 13] = [2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41];
@@ -26,6 +29,9 @@ fn deterministic_bound() -> Integer {
 pub fn is_prime(n: &Integer) -> bool {
     if *n < 2 {
         return false;
+    }
+    if let Some(m) = n.to_u64() {
+        return is_prime_u64(m);
     }
     for b in BASES {
         if *n == b {
@@ -125,12 +131,24 @@ pub fn factor(n: &Integer) -> Vec<(Integer, u32)> {
 /// [`factor`] within a budget of rho iterations (about 10⁶ per second); `None` when the
 /// budget runs out (only for numbers with two large prime factors, far beyond 10²⁴).
 pub fn try_factor(n: &Integer, budget: u64) -> Option<Vec<(Integer, u32)>> {
+    match n.clone().abs().to_u64() {
+        Some(m) => Some(
+            factor_u64(m)
+                .iter()
+                .map(|&(p, e)| (Integer::from(p), e))
+                .collect(),
+        ),
+        None => try_factor_big(n, budget),
+    }
+}
+
+/// The big-integer algorithm of [`try_factor`] for any `n` (trial division below 10⁴, then
+/// rho); `try_factor` uses it above 2⁶⁴, and `benches/local.rs` compares it with
+/// [`factor_u64`] on numbers below 2⁶⁴.
+pub fn try_factor_big(n: &Integer, budget: u64) -> Option<Vec<(Integer, u32)>> {
     let mut budget = budget;
     let mut m = n.clone().abs();
     let mut out: Vec<(Integer, u32)> = Vec::new();
-    if m <= 1 {
-        return Some(out);
-    }
     let push =
         |p: Integer, out: &mut Vec<(Integer, u32)>| match out.iter_mut().find(|(q, _)| *q == p) {
             Some(e) => e.1 += 1,

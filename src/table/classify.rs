@@ -13,11 +13,11 @@
 //! assert_eq!(classify(&g, Annotation::FULL).unwrap().unwrap().form, row.form);
 //! ```
 
-use crate::arith::primes::factor;
+use crate::arith::factor64::factor_u64;
 use crate::error::{Error, Result};
 use crate::form::canonical::{is_canonical_with, stabiliser_of_member, translates_into_strip};
 use crate::form::galois::{factor_pattern, galois_group, FactorPattern};
-use crate::form::local::local_data;
+use crate::form::local::local_data_machine;
 use crate::form::Form;
 use crate::table::row::ClassRow;
 
@@ -69,12 +69,11 @@ fn annotate(f: &Form<i128>, what: Annotation) -> Result<Option<ClassRow>> {
     let stabiliser = stabiliser_of_member(f)?.len() as u8;
     let small = |v: i128| i64::try_from(v).map_err(|_| Error::Overflow);
     let local = if what.with_local {
-        let big = f.to_big();
-        let factors = factor(&big.invariants().expect("big integers").disc);
-        local_data(&big, &factors, signature)
-            .into_iter()
-            .map(|l| l.map_prime(|p| p.to_i64().expect("primes of a table fit i64")))
-            .collect()
+        // The machine path: |Disc| ≤ 2⁶³ is checked by `small` below, so its primes are
+        // below 2⁶³; values of the search that do not fit i128 go to big integers there.
+        small(inv.disc)?;
+        let factors = factor_u64(inv.disc.unsigned_abs() as u64);
+        local_data_machine(f, &factors, signature)
     } else {
         Vec::new()
     };

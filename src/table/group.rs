@@ -14,7 +14,7 @@
 //! assert_eq!(parse_label("R-48_1404_012"), Some((-48, 1404, false, 12)));
 //! ```
 
-use crate::arith::primes::factor;
+use crate::arith::factor64::factor_u64;
 use crate::error::Result;
 use crate::form::invariants_from_ij;
 use crate::form::rational::Algebra;
@@ -107,9 +107,9 @@ pub fn make_pair(i: i64, j: i64, mut classes: Vec<ClassRow>) -> Result<Pair> {
         j,
         disc,
         h4: i64::try_from(inv.h4).expect("the height of a table fits i64"),
-        disc_factors: factor(&Integer::from(disc))
-            .into_iter()
-            .map(|(p, e)| (p.to_i64().expect("a factor of an i64"), e))
+        disc_factors: factor_u64(disc.unsigned_abs())
+            .iter()
+            .map(|&(p, e)| (p as i64, e)) // a prime factor of an i64 is below 2⁶³
             .collect(),
         classes,
         over_q,

@@ -30,6 +30,15 @@
 //!
 //! **At infinity**: a real point exists unless f is negative definite.
 //!
+//! **Two paths, one algorithm.** The search ([`qp`]) and the pattern ([`pattern`]) are
+//! written once, generic over the integers (checked `i128` or [`rug::Integer`]) and over the
+//! field ([`crate::arith::fp`]). The general entry points ([`local_data`], [`qp_soluble`],
+//! [`pattern_mod_p`]) take forms and primes of any size. The machine entry points
+//! ([`local_data_machine`], [`qp_soluble_machine`], [`pattern_mod_machine`]) take a form on
+//! `i128` and primes below 2⁶³ (every prime of a discriminant that fits `i64`); they work
+//! on machine integers and fixed arrays, and when a value of the search would not fit
+//! `i128` they run the general path on that prime instead, so the answers are the same.
+//!
 //! ```
 //! use qorbits::form::Form;
 //! use qorbits::form::local::qp_soluble;
@@ -42,10 +51,12 @@
 //! }
 //! ```
 
-use crate::arith::fp::{self, with_field, Field};
-use crate::arith::primes::powers_text;
+mod pattern;
+mod qp;
+
+use crate::arith::fp::{with_field, with_machine_field, Field};
 use crate::form::{Form, Signature};
-use rug::ops::Pow;
+use qp::qp_in;
 use rug::Integer;
 use std::fmt;
 
@@ -109,6 +120,37 @@ pub fn insoluble_places<P>(places: &[LocalPlace<P>]) -> impl Iterator<Item = &Pl
     places.iter().filter(|l| !l.soluble).map(|l| &l.place)
 }
 
+/// The places of 2·Disc in increasing order, each with what `at` computes there (pattern,
+/// solubility), then the real place.
+fn places<P: Ord>(
+    mut primes: Vec<(P, u32)>,
+    two: P,
+    at: impl Fn(&P) -> (String, bool),
+    s: Signature,
+) -> Vec<LocalPlace<P>> {
+    if !primes.iter().any(|(p, _)| *p == two) {
+        primes.push((two, 0));
+    }
+    primes.sort();
+    let mut out: Vec<LocalPlace<P>> = Vec::with_capacity(primes.len() + 1);
+    for (p, v) in primes {
+        let (pattern, soluble) = at(&p);
+        out.push(LocalPlace {
+            place: Place::Prime(p),
+            v_disc: Some(v),
+            pattern,
+            soluble,
+        });
+    }
+    out.push(LocalPlace {
+        place: Place::Real,
+        v_disc: None,
+        pattern: s.name().into(),
+        soluble: real_soluble(s),
+    });
+    out
+}
+
 /// The local data of f at every prime dividing 2·Disc, in increasing order, then at the
 /// real place, given the factorisation of Disc (DESIGN §4).
 pub fn local_data(
@@ -116,27 +158,27 @@ pub fn local_data(
     disc_factors: &[(Integer, u32)],
     s: Signature,
 ) -> Vec<LocalPlace<Integer>> {
-    let mut primes: Vec<(Integer, u32)> = disc_factors.to_vec();
-    if !primes.iter().any(|(p, _)| *p == 2) {
-        primes.push((Integer::from(2), 0));
-    }
-    primes.sort();
-    let mut places: Vec<LocalPlace<Integer>> = primes
-        .into_iter()
-        .map(|(p, v)| LocalPlace {
-            pattern: pattern_mod_p(f, &p),
-            soluble: qp_soluble(f, &p),
-            v_disc: Some(v),
-            place: Place::Prime(p),
-        })
+    let at = |p: &Integer| (pattern_mod_p(f, p), qp_soluble(f, p));
+    places(disc_factors.to_vec(), Integer::from(2), at, s)
+}
+
+/// [`local_data`] on the machine path (module doc): f on `i128`, the factorisation of
+/// |Disc| on `u64` with primes below 2⁶³ (as [`crate::arith::factor64::factor_u64`] gives
+/// it for a discriminant that fits `i64`); the same answer.
+pub fn local_data_machine(
+    f: &Form<i128>,
+    disc_factors: &[(u64, u32)],
+    s: Signature,
+) -> Vec<LocalPlace<i64>> {
+    let primes = disc_factors
+        .iter()
+        .map(|&(p, e)| (i64::try_from(p).expect("primes below 2^63"), e))
         .collect();
-    places.push(LocalPlace {
-        place: Place::Real,
-        v_disc: None,
-        pattern: s.name().into(),
-        soluble: real_soluble(s),
-    });
-    places
+    let at = |&p: &i64| {
+        let p = p as u64;
+        (pattern_mod_machine(f, p), qp_soluble_machine(f, p))
+    };
+    places(primes, 2, at, s)
 }
 
 /// Whether z² = f(x, y) has a real point: unless f is negative definite.
@@ -144,219 +186,34 @@ pub fn real_soluble(s: Signature) -> bool {
     s != Signature::NegativeDefinite
 }
 
-// ---------------------------------------------------------------------------------------
-// The factorisation pattern of f mod p.
-
 /// Degrees (with multiplicities) of the irreducible factors of f mod p, a root at
-/// infinity included, e.g. `1 1^3`, `2 2`, `1^2 2`; `0` when f vanishes mod p.
-///
-/// A quartic without roots mod p is `2^2` when it has a repeated factor; otherwise, for odd
-/// p, `2 2` or `4` according as its discriminant is a square mod p or not (Stickelberger:
-/// the discriminant of a squarefree polynomial of degree n is a square iff the number of
-/// its irreducible factors is ≡ n mod 2); over F_2 the only rootless quartic products of
-/// quadratics are squares, so it is `4`.
+/// infinity included, e.g. `1 1^3`, `2 2`, `1^2 2`; `0` when f vanishes mod p (the method
+/// is in [`pattern`]).
 pub fn pattern_mod_p(f: &Form<Integer>, p: &Integer) -> String {
-    with_field!(p, |fld| pattern_in(fld, f))
+    with_field!(p, |fld| pattern::pattern_in(
+        fld,
+        f.c.each_ref().map(|x| fld.reduce(x))
+    ))
 }
 
-fn pattern_in<F: Field>(fld: &F, f: &Form<Integer>) -> String {
-    let c: Vec<F::E> = f.c.iter().map(|x| fld.reduce(x)).collect();
-    if c.iter().all(|x| fld.is_zero(x)) {
-        return "0".into();
-    }
-    let inf = c.iter().take_while(|x| fld.is_zero(x)).count() as u32;
-    // f(x, 1) in ascending order: e + d x + c x² + b x³ + a x⁴.
-    let mut g = fp::normalise(fld, c.into_iter().rev().collect());
-    let mut parts: Vec<(usize, u32)> = Vec::new();
-    if inf > 0 {
-        parts.push((1, inf));
-    }
-    for r in fp::roots(fld, &g) {
-        let lin = vec![fld.sub(&fld.zero(), &r), fld.one()];
-        let mut m = 0;
-        loop {
-            let (q, rem) = fp::divrem(fld, &g, &lin);
-            if g.len() <= 1 || !rem.is_empty() {
-                break;
-            }
-            g = q;
-            m += 1;
-        }
-        parts.push((1, m));
-    }
-    match g.len().saturating_sub(1) {
-        0 => {}
-        2 | 3 => parts.push((g.len() - 1, 1)),
-        4 => {
-            // No linear factor: a repeated factor makes it the square of a quadratic (in
-            // characteristic 2 the derivative of a square vanishes, and gcd(g, 0) = g).
-            let d = fp::gcd(fld, &g, &fp::derivative(fld, &g));
-            if d.len() > 1 {
-                parts.push((2, 2));
-            } else if fld.order() != 2 && fld.legendre(&quartic_disc(fld, &g)) == 1 {
-                parts.push((2, 1));
-                parts.push((2, 1));
-            } else {
-                parts.push((4, 1));
-            }
-        }
-        _ => unreachable!("degree at most 4"),
-    }
-    parts.sort();
-    powers_text(&parts)
-}
-
-/// The discriminant mod p of the quartic `g` (ascending), from the invariants of the binary
-/// form: `27·Disc = 4I³ − J²` (DESIGN §2).
-fn quartic_disc<F: Field>(fld: &F, g: &[F::E]) -> F::E {
-    let c: [Integer; 5] = std::array::from_fn(|k| fld.to_integer(&g[4 - k]));
-    fld.reduce(&Form::new(c).invariants().expect("big integers").disc)
-}
-
-// ---------------------------------------------------------------------------------------
-// Solubility over Q_p.
-
-fn val(n: &Integer, p: &Integer) -> u32 {
-    if *n == 0 {
-        return u32::MAX;
-    }
-    let mut m = n.clone();
-    let mut v = 0;
-    while m.is_divisible(p) {
-        m /= p;
-        v += 1;
-    }
-    v
-}
-
-/// Whether the non-zero integer `n` is a square in Q_p.
-fn is_square_qp(n: &Integer, p: &Integer) -> bool {
-    let v = val(n, p);
-    if v % 2 == 1 {
-        return false;
-    }
-    let u = n / p.clone().pow(v);
-    if *p == 2 {
-        u.mod_u(8) == 1
-    } else {
-        with_field!(p, |fld| fld.legendre(&fld.reduce(&u)) == 1)
-    }
-}
-
-/// Taylor coefficients of g at x0 (g ascending): `g(x0 + y) = Σ t_i y^i`.
-fn taylor(g: &[Integer], x0: &Integer) -> Vec<Integer> {
-    let mut t = g.to_vec();
-    let n = t.len();
-    for i in 0..n {
-        for j in (i..n - 1).rev() {
-            let add = Integer::from(&t[j + 1] * x0);
-            t[j] += add;
-        }
-    }
-    t
-}
-
-fn disc_soluble(g: &[Integer], p: &Integer, x0: Integer, k: u32) -> bool {
-    let t = taylor(g, &x0);
-    if t[0] == 0 {
-        return true;
-    }
-    let v = val(&t[0], p);
-    if t.len() > 1 && t[1] != 0 && v > 2 * val(&t[1], p) {
-        return true; // Hensel
-    }
-    let w = t
-        .iter()
-        .enumerate()
-        .skip(1)
-        .filter(|(_, c)| **c != 0)
-        .map(|(i, c)| val(c, p) as u64 + i as u64 * k as u64)
-        .min()
-        .unwrap_or(u64::MAX);
-    let margin = if *p == 2 { 2 } else { 0 };
-    if w > v as u64 + margin {
-        return is_square_qp(&t[0], p);
-    }
-    let pk = p.clone().pow(k);
-    if *p > 50 {
-        return large_prime_split(g, &t, p, &x0, &pk, k);
-    }
-    let pu = p.to_u32().expect("small prime");
-    (0..pu).any(|r| disc_soluble(g, p, &x0 + Integer::from(&pk * r), k + 1))
-}
-
-/// The sub-disc step for odd p > 50 (module doc, "Large primes").
-fn large_prime_split(
-    g: &[Integer],
-    t: &[Integer],
-    p: &Integer,
-    x0: &Integer,
-    pk: &Integer,
-    k: u32,
-) -> bool {
-    // h(s) = Σ t_i p^{ik} s^i = p^m·ḡ(s).
-    let h: Vec<Integer> = t
-        .iter()
-        .enumerate()
-        .map(|(i, c)| c * pk.clone().pow(i as u32))
-        .collect();
-    let m = h
-        .iter()
-        .filter(|c| **c != 0)
-        .map(|c| val(c, p))
-        .min()
-        .expect("non-zero");
-    let pm = p.clone().pow(m);
-    let gbar: Vec<Integer> = h.iter().map(|c| Integer::from(c / &pm)).collect();
-    let deeper = with_field!(p, |fld| residue_split(fld, &gbar, m % 2 == 0));
-    match deeper {
-        Ok(decided) => decided,
-        Err(roots) => roots
-            .into_iter()
-            .any(|r| disc_soluble(g, p, x0 + (pk * r), k + 1)),
-    }
-}
-
-/// The F_p part of [`large_prime_split`]: `Ok(found)` when the residues of ḡ decide the
-/// disc, else `Err(roots of ḡ mod p)`, the sub-discs that need a deeper look.
-fn residue_split<F: Field>(
-    fld: &F,
-    gbar: &[Integer],
-    even: bool,
-) -> std::result::Result<bool, Vec<Integer>> {
-    let gbar = fp::reduce_poly(fld, gbar);
-    if even {
-        for r in 0u64..64 {
-            if fld.legendre(&fp::eval(fld, &gbar, &fld.elem(r))) == 1 {
-                return Ok(true);
-            }
-        }
-        if gbar.len() == 1 {
-            return Ok(false); // a constant non-square (or the search above found it)
-        }
-        if !fp::is_constant_times_square(fld, &gbar) {
-            // Weil: Σ_r χ(ḡ(r)) ≥ −3√p, and fewer than 5 roots, so some ḡ(r) is a non-zero
-            // square once p − 3√p − 4 > 0, true for p > 50.
-            return Ok(true);
-        }
-    }
-    Err(fp::roots(fld, &gbar)
-        .iter()
-        .map(|r| fld.to_integer(r))
-        .collect())
+/// [`pattern_mod_p`] on machine integers, for a prime `p < 2⁶³`.
+pub fn pattern_mod_machine(f: &Form<i128>, p: u64) -> String {
+    with_machine_field!(p, |fld| pattern::pattern_in(
+        fld,
+        f.c.map(|x| fld.reduce_i128(x))
+    ))
 }
 
 /// Whether z² = f(x, y) has a point over Q_p (p prime, Disc(f) ≠ 0).
 pub fn qp_soluble(f: &Form<Integer>, p: &Integer) -> bool {
-    // x ∈ Z_p, y = 1: g(x) = f(x, 1), ascending.
-    let g1: Vec<Integer> = f.c.iter().rev().cloned().collect();
-    // x = 1, y = p·t: g(t) = f(1, p t) = Σ c_k p^k t^k.
-    let g2: Vec<Integer> =
-        f.c.iter()
-            .enumerate()
-            .map(|(k, c)| c * p.clone().pow(k as u32))
-            .collect();
-    disc_soluble(&g1, p, Integer::new(), 0) || disc_soluble(&g2, p, Integer::new(), 0)
+    with_field!(p, |fld| qp_in(fld, &f.c, p)).expect("big integers do not overflow")
+}
+
+/// [`qp_soluble`] on machine integers for a prime `p < 2⁶³`; when a value of the search
+/// would not fit `i128`, the same search runs on big integers.
+pub fn qp_soluble_machine(f: &Form<i128>, p: u64) -> bool {
+    with_machine_field!(p, |fld| qp_in(fld, &f.c, &i128::from(p)))
+        .unwrap_or_else(|| qp_soluble(&f.to_big(), &Integer::from(p)))
 }
 
 #[cfg(test)]
