@@ -24,8 +24,7 @@
 //! assert!(n > 0);
 //! ```
 
-use crate::arith::int::Int;
-use crate::enumerate::bounds::{c_window_a0, int_range, linear_range, poly_range};
+use crate::enumerate::bounds::{c_window_a0, d_ranges, int_range, linear_range, poly_range};
 use crate::enumerate::bounds::{Bounds, Task, C, SLACK};
 use crate::form::canonical::y_min;
 
@@ -42,33 +41,21 @@ impl Task {
         if y_max < y_min() {
             return 0;
         }
-        let (af, bf) = (a as f64, b as f64);
+        let bf = b as f64;
         let mut count = 0;
         let mut per_c = |c: i128, x_lo: f64, x_hi: f64, count: &mut u64| {
-            let cf = c as f64;
-            // d = g3 − 2·x0·c − 3·x0²·b − 4·x0³·a with |g3| ≤ C3·K·y0.
-            let (rlo, rhi) = poly_range([0.0, -2.0 * cf, -3.0 * bf, -4.0 * af], x_lo, x_hi);
-            let m = C[3] * k * y_max;
-            let (d_lo, d_hi) = int_range(rlo - m, rhi + m);
-            let (mut d_lo, mut d_hi) = (d_lo as i128, d_hi as i128);
-            let (lo, hi) = if a != 0 {
-                // Syzygy: 27R² = 48·I·a²·P − P³ − 64·J·a³ ≤ 48·I_max·a²·|P| − P³ + 64·J_max·|a|³.
-                let p = 8 * a * c - 3 * b * b;
-                let rhs =
-                    48 * hb.i_max * a * a * p.abs() - p * p * p + 64 * hb.j_max * a.abs().pow(3);
-                if rhs < 0 {
-                    return;
-                }
-                let r_max = Int::isqrt(&(rhs / 27)).expect("non-negative");
-                // R = b³ + 8a²d − 4abc.
-                linear_range(8 * a * a, b * b * b - 4 * a * b * c, -r_max, r_max)
+            let ranges = if a != 0 {
+                // The annulus of R from the syzygy, inside the range of g3 (bounds::d_ranges).
+                d_ranges(hb, self.a, self.b, c)
             } else {
-                // I = c² − 3bd.
-                linear_range(-3 * b, c * c, -hb.i_max, hb.i_max)
+                // d = g3 − 2·x0·c − 3·x0²·b with |g3| ≤ C3·K·y0, and I = c² − 3bd.
+                let (rlo, rhi) = poly_range([0.0, -2.0 * c as f64, -3.0 * bf, 0.0], x_lo, x_hi);
+                let m = C[3] * k * y_max;
+                let (d_lo, d_hi) = int_range(rlo - m, rhi + m);
+                let (lo, hi) = linear_range(-3 * b, c * c, -hb.i_max, hb.i_max);
+                vec![(i128::from(d_lo).max(lo), i128::from(d_hi).min(hi))]
             };
-            d_lo = d_lo.max(lo);
-            d_hi = d_hi.min(hi);
-            for d in d_lo..=d_hi {
+            for d in ranges.into_iter().flat_map(|(lo, hi)| lo..=hi) {
                 // I = 12a·e + (c² − 3bd), J = (72ac − 27b²)·e + (9bcd − 27ad² − 2c³).
                 let (i0, j0) = (
                     c * c - 3 * b * d,
