@@ -27,6 +27,8 @@ struct Cli {
 enum Command {
     Reduce(cmd::reduce::Args),
     Build(cmd::build::Args),
+    Plan(cmd::plan::Args),
+    Merge(cmd::merge::Args),
     Verify(cmd::verify::Args),
     Classes(cmd::classes::Args),
     Cite(cmd::cite::Args),
@@ -39,6 +41,8 @@ fn dispatch(c: Command) -> Result<ExitCode, Error> {
     match c {
         Command::Reduce(a) => cmd::reduce::run(a)?,
         Command::Build(a) => cmd::build::run(a)?,
+        Command::Plan(a) => cmd::plan::run(a)?,
+        Command::Merge(a) => cmd::merge::run(a)?,
         Command::Verify(a) => return cmd::verify::run(a),
         Command::Classes(a) => cmd::classes::run(a)?,
         Command::Cite(a) => cmd::cite::run(a)?,

@@ -337,8 +337,21 @@ fn moves_into_f<T: Int>(mut z: Cx<Mp>) -> Result<(Gl2<T>, Cx<Mp>)> {
 
 /// The PGL2(Z)-stabiliser of a form whose point lies in `F_η`, from [`NEIGHBOURS`].
 pub fn stabiliser_of_member<T: Int>(f: &Form<T>) -> Result<Vec<Gl2<T>>> {
+    stabiliser_near(f, None)
+}
+
+/// [`stabiliser_of_member`] given an f64 approximation of the point (error below 10⁻⁶):
+/// an element that does not fix the point within 10⁻⁵ cannot fix the form (a stabiliser
+/// element fixes z(f) exactly, DESIGN §3), so it is not tried.
+pub fn stabiliser_near<T: Int>(f: &Form<T>, point: Option<(f64, f64)>) -> Result<Vec<Gl2<T>>> {
     let mut out = Vec::new();
     for n in NEIGHBOURS {
+        if let Some(z) = point {
+            let w = move_point(&n, z);
+            if (w.0 - z.0).abs() + (w.1 - z.1).abs() > 1e-5 {
+                continue;
+            }
+        }
         let g = Gl2::new(n[0], n[1], n[2], n[3]);
         if f.act(&g).ok_or(Error::Overflow)? == *f {
             out.push(g);

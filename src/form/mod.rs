@@ -136,29 +136,30 @@ impl<T: Int> Form<T> {
     /// `γ·f`, exactly (DESIGN §2), or `None` on overflow.
     pub fn act(&self, g: &Gl2<T>) -> Option<Form<T>> {
         let [p, q, r, s] = &g.m;
-        // Powers of the linear forms p x + r y and q x + s y, as coefficient vectors in x, y.
-        let pow = |u: &T, v: &T| -> Option<Vec<Vec<T>>> {
-            let mut out = vec![vec![T::from_i64(1)]];
+        // Powers of the linear forms p x + r y and q x + s y, as coefficient arrays in x, y
+        // (row k holds the k + 1 coefficients of the k-th power), on the stack.
+        let zero = || T::from_i64(0);
+        let pow = |u: &T, v: &T| -> Option<[[T; 5]; 5]> {
+            let mut out: [[T; 5]; 5] = std::array::from_fn(|_| std::array::from_fn(|_| zero()));
+            out[0][0] = T::from_i64(1);
             for k in 1..=4 {
-                let prev: &Vec<T> = &out[k - 1];
-                let mut next = vec![T::from_i64(0); k + 1];
-                for (i, x) in prev.iter().enumerate() {
-                    next[i] = next[i].add(&x.mul(u)?)?;
-                    next[i + 1] = next[i + 1].add(&x.mul(v)?)?;
+                for i in 0..k {
+                    let x = out[k - 1][i].clone();
+                    out[k][i] = out[k][i].add(&x.mul(u)?)?;
+                    out[k][i + 1] = out[k][i + 1].add(&x.mul(v)?)?;
                 }
-                out.push(next);
             }
             Some(out)
         };
         let l1 = pow(p, r)?;
         let l2 = pow(q, s)?;
-        let mut out: [T; 5] = std::array::from_fn(|_| T::from_i64(0));
+        let mut out: [T; 5] = std::array::from_fn(|_| zero());
         for k in 0..=4 {
             if self.c[k].is_zero() {
                 continue;
             }
             // c_k · (p x + r y)^{4−k} · (q x + s y)^k
-            let (u, v) = (&l1[4 - k], &l2[k]);
+            let (u, v) = (&l1[4 - k][..=4 - k], &l2[k][..=k]);
             for (i, x) in u.iter().enumerate() {
                 let cx = self.c[k].mul(x)?;
                 for (j, y) in v.iter().enumerate() {

@@ -15,7 +15,7 @@
 
 use crate::arith::factor64::factor_u64;
 use crate::error::{Error, Result};
-use crate::form::canonical::{is_canonical_with, stabiliser_of_member, translates_into_strip};
+use crate::form::canonical::{is_canonical_with, stabiliser_near, translates_into_strip};
 use crate::form::galois::{factor_pattern, galois_group, FactorPattern};
 use crate::form::local::local_data_machine;
 use crate::form::Form;
@@ -46,15 +46,21 @@ pub fn classify(f: &Form<i128>, what: Annotation) -> Result<Option<ClassRow>> {
         return Ok(None);
     }
     for (t, hint) in translates_into_strip(f)? {
+        let point = hint.as_ref().map(|p| (p.x, p.y));
         if is_canonical_with(&t, hint)? {
-            return annotate(&t, what);
+            return annotate(&t, point, what);
         }
     }
     Ok(None)
 }
 
 /// The row of a canonical form (label and class over Q are filled in by the grouping).
-fn annotate(f: &Form<i128>, what: Annotation) -> Result<Option<ClassRow>> {
+/// `point` is the f64 covariant point of `f`, when known (it narrows the stabiliser search).
+fn annotate(
+    f: &Form<i128>,
+    point: Option<(f64, f64)>,
+    what: Annotation,
+) -> Result<Option<ClassRow>> {
     let inv = f.invariants().ok_or(Error::Overflow)?;
     let pattern = factor_pattern(f)
         .or_else(|| factor_pattern(&f.to_big()))
@@ -66,7 +72,7 @@ fn annotate(f: &Form<i128>, what: Annotation) -> Result<Option<ClassRow>> {
         .or_else(|| galois_group(&f.to_big()))
         .expect("big integers do not overflow");
     let signature = f.signature(&inv).ok_or(Error::Overflow)?;
-    let stabiliser = stabiliser_of_member(f)?.len() as u8;
+    let stabiliser = stabiliser_near(f, point)?.len() as u8;
     let small = |v: i128| i64::try_from(v).map_err(|_| Error::Overflow);
     let local = if what.with_local {
         // The machine path: |Disc| ≤ 2⁶³ is checked by `small` below, so its primes are

@@ -137,12 +137,19 @@ fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
 
 /// The manifest of a table file, computed from the file (counts by SQL).
 pub fn manifest_for(path: &Path) -> Result<Manifest> {
-    let conn = open_table(path)?;
-    let params = table_params(&conn)?;
     let name = path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
+    manifest_named(path, &name)
+}
+
+/// The manifest of the table file at `path` as if it were named `name` (a table still under
+/// its temporary name).
+pub fn manifest_named(path: &Path, name: &str) -> Result<Manifest> {
+    let conn = open_table(path)?;
+    let params = table_params(&conn)?;
+    let name = name.to_string();
     let bytes = std::fs::metadata(path)
         .map_err(|e| Error::Io(format!("{}: {e}", path.display())))?
         .len();
@@ -372,7 +379,8 @@ pub fn rebuild_and_compare(manifest: &Path, progress: &dyn Progress) -> Result<V
     let m = read_manifest(manifest)?;
     let dir = fresh_temp_dir("rebuild")?;
     let out = dir.join("rebuild.sqlite");
-    let result = crate::table::pipeline::build(&m.parameters, &out, false, progress)
+    let opts = crate::table::build::BuildOptions::default();
+    let result = crate::table::build::build_table(&m.parameters, &out, &opts, progress)
         .and_then(|_| verify(&out, &m));
     let _ = std::fs::remove_dir_all(&dir);
     result

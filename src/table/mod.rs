@@ -6,15 +6,19 @@
 //! asymptotic main terms ([`stats`]).
 
 pub mod atomic;
+pub mod build;
 pub mod classify;
 pub mod group;
 pub mod hash;
 pub mod json;
 pub mod manifest;
+pub mod merge;
 pub mod pipeline;
+pub mod plan;
 pub mod query;
 pub mod reader;
 pub mod row;
+pub mod runs;
 pub mod schema;
 pub mod stats;
 pub mod writer;

@@ -1,6 +1,7 @@
-//! The pipeline: enumerate → classify → group → write → manifest (DESIGN §4, §5), for a
-//! whole table ([`enumerate_classes`], [`build`]) and for the classes of one pair
-//! ([`classes_with_invariants`], through the search by invariants, no table needed).
+//! The pipeline in memory: enumerate → classify → group, for a whole table
+//! ([`enumerate_classes`], for tests and benchmarks; a build of any size goes through
+//! [`crate::table::build`]) and for the classes of one pair ([`classes_with_invariants`],
+//! through the search by invariants, no table needed).
 //!
 //! ```
 //! use qorbits::progress::Silent;
@@ -18,13 +19,10 @@ use crate::form::{invariants_from_ij, Form};
 use crate::progress::Progress;
 use crate::table::classify::{classify, Annotation};
 use crate::table::group::{group_rows, make_pair};
-use crate::table::manifest::{default_manifest_path, manifest_for, write_manifest, Manifest};
 use crate::table::row::{ClassRow, Pair, Params, Table};
-use crate::table::writer::write_table;
 use rayon::prelude::*;
 use rug::Integer;
 use std::collections::HashMap;
-use std::path::{Path, PathBuf};
 
 /// Every class with `H < height` (irreducible, or all with `include_reducible`), in table
 /// order. Runs on the current rayon pool; `progress` advances once per task.
@@ -181,43 +179,6 @@ pub fn classes_of_congruent_pairs(
             make_pair(i, j, rows)
         })
         .collect()
-}
-
-/// What [`build`] wrote.
-#[derive(Clone, Debug)]
-pub struct BuildSummary {
-    /// The table file.
-    pub table: PathBuf,
-    /// Its manifest, beside it.
-    pub manifest_path: PathBuf,
-    /// The manifest.
-    pub manifest: Manifest,
-}
-
-/// Builds the table of `params` into `out` and its manifest beside it
-/// ([`default_manifest_path`]), on the current rayon pool. Existing files are refused
-/// ([`Error::Exists`]) unless `replace`, before any work is done.
-pub fn build(
-    params: &Params,
-    out: &Path,
-    replace: bool,
-    progress: &dyn Progress,
-) -> Result<BuildSummary> {
-    let manifest_path = default_manifest_path(out);
-    for target in [out, manifest_path.as_path()] {
-        if !replace && std::fs::symlink_metadata(target).is_ok() {
-            return Err(Error::Exists(target.to_path_buf()));
-        }
-    }
-    let table = enumerate_classes(params, progress)?;
-    write_table(out, &table, replace)?;
-    let manifest = manifest_for(out)?;
-    write_manifest(&manifest_path, &manifest, replace)?;
-    Ok(BuildSummary {
-        table: out.to_path_buf(),
-        manifest_path,
-        manifest,
-    })
 }
 
 #[cfg(test)]

@@ -107,6 +107,14 @@ impl TableWriter {
 
     /// Builds the indexes, commits, flushes and renames the file into place.
     pub fn finish(self) -> Result<Written> {
+        self.finish_with(|_| Ok(()))
+    }
+
+    /// [`TableWriter::finish`], calling `before` with the path of the finished temporary
+    /// file just before it is renamed into place (the build writes the manifest there, so
+    /// that a table never stands at its name without its manifest); an error from `before`
+    /// leaves nothing at the target.
+    pub fn finish_with(self, before: impl FnOnce(&Path) -> Result<()>) -> Result<Written> {
         let target = self.target.clone();
         let written = Written {
             classes: self.classes as u64,
@@ -118,6 +126,7 @@ impl TableWriter {
             self.conn.close().map_err(|(_, e)| e)
         })()
         .map_err(|e| write_error(&target, e))?;
+        before(self.tmp.path())?;
         self.tmp.commit(&target, self.replace)?;
         Ok(written)
     }

@@ -4,6 +4,8 @@
 pub mod build;
 pub mod cite;
 pub mod classes;
+pub mod merge;
+pub mod plan;
 pub mod reduce;
 pub mod selmer;
 pub mod selmer_stats;

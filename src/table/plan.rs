@@ -1,0 +1,274 @@
+//! The plan of a build: the deterministic list of chunks of the enumeration with the
+//! candidates each holds (counted by the loops themselves, without classifying anything),
+//! the partition of the chunks into shards balanced by that work, and the model that turns
+//! candidates into expected classes, time, disk and memory (DESIGN §7).
+//!
+//! A chunk is a few consecutive segments of the loops (a task (a, b) and a range of its
+//! values of c), cut so that no chunk holds more than [`CHUNK_CANDIDATES`] candidates: its
+//! classified rows fit in memory, sorted, before they are written as a run. The list
+//! depends only on the parameters and the number of shards, so every machine of a cluster
+//! computes the same one.
+//!
+//! ```
+//! use qorbits::progress::Silent;
+//! use qorbits::table::plan::plan;
+//! use qorbits::table::row::Params;
+//! let p = plan(&Params { height: 100_000, include_reducible: false }, 4, &Silent).unwrap();
+//! let shards = p.shards(4);
+//! assert_eq!(shards.iter().map(Vec::len).sum::<usize>(), p.chunks.len());
+//! ```
+
+use crate::enumerate::bounds::{Bounds, Task};
+use crate::enumerate::bulk::Chunk;
+use crate::error::Result;
+use crate::progress::Progress;
+use crate::table::row::Params;
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+
+/// The most candidates a chunk holds (about 2·10⁵ classes, a few hundred MB of rows in
+/// memory at most while they are sorted).
+pub const CHUNK_CANDIDATES: u64 = 2_000_000;
+
+/// The fewest candidates a chunk is cut down to (smaller chunks only cost files).
+pub const MIN_CHUNK_CANDIDATES: u64 = 20_000;
+
+/// Chunks per shard that the cut aims at, so that shards can be balanced.
+pub const CHUNKS_PER_SHARD: u64 = 32;
+
+/// A part of the loops: one task and a range of its values of c.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Segment {
+    /// Leading coefficient.
+    pub a: i64,
+    /// Second coefficient.
+    pub b: i64,
+    /// First value of c.
+    pub c_lo: i64,
+    /// Last value of c.
+    pub c_hi: i64,
+}
+
+impl Segment {
+    /// The chunk of the loops.
+    pub fn chunk(&self) -> Chunk {
+        Chunk {
+            task: Task {
+                a: self.a,
+                b: self.b,
+            },
+            c_lo: self.c_lo,
+            c_hi: self.c_hi,
+        }
+    }
+}
+
+/// One chunk: consecutive segments of the loops, and its work.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct PlannedChunk {
+    /// The segments.
+    pub segments: Vec<Segment>,
+    /// Candidates the loops meet in the chunk.
+    pub candidates: u64,
+}
+
+/// The chunks of a build, in a fixed order (their index names their run).
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Plan {
+    /// The parameters.
+    pub params: Params,
+    /// The shards the chunks were cut for (1 for a build on one machine).
+    pub shards: usize,
+    /// The chunks.
+    pub chunks: Vec<PlannedChunk>,
+}
+
+/// Splits the candidates of one task, counted per value of c, into segments of at most
+/// `limit` candidates (a single value of c may exceed it).
+fn split(task: Task, counts: &[(i64, u64)], limit: u64) -> Vec<(Segment, u64)> {
+    let mut out: Vec<(Segment, u64)> = Vec::new();
+    for &(c, n) in counts {
+        match out.last_mut() {
+            Some((seg, m)) if *m + n <= limit => {
+                seg.c_hi = c;
+                *m += n;
+            }
+            _ => out.push((
+                Segment {
+                    a: task.a,
+                    b: task.b,
+                    c_lo: c,
+                    c_hi: c,
+                },
+                n,
+            )),
+        }
+    }
+    out
+}
+
+/// The plan of the build of `params` cut for `shards` shards, counting on the current
+/// rayon pool: the candidates of every task, the size of a chunk (at most
+/// [`CHUNK_CANDIDATES`], aiming at [`CHUNKS_PER_SHARD`] chunks a shard), the tasks cut by c
+/// where they are larger, and consecutive segments packed into chunks. `progress` advances
+/// once per task.
+pub fn plan(params: &Params, shards: usize, progress: &dyn Progress) -> Result<Plan> {
+    let hb = Bounds::for_height(params.height)?;
+    let tasks = Task::all(&hb, params.include_reducible);
+    progress.start("planning", 2 * tasks.len() as u64);
+    let whole = |t: &Task| {
+        let (lo, hi) = t.c_values(&hb);
+        Chunk {
+            task: *t,
+            c_lo: lo,
+            c_hi: hi,
+        }
+    };
+    let totals: Vec<u64> = tasks
+        .par_iter()
+        .map(|t| {
+            let n = whole(t).count_by_c(&hb).iter().map(|x| x.1).sum();
+            progress.advance(1);
+            n
+        })
+        .collect();
+    let total: u64 = totals.iter().sum();
+    let limit = (total / (shards.max(1) as u64 * CHUNKS_PER_SHARD))
+        .clamp(MIN_CHUNK_CANDIDATES, CHUNK_CANDIDATES);
+    let pieces: Vec<Vec<(Segment, u64)>> = tasks
+        .par_iter()
+        .zip(&totals)
+        .map(|(t, &n)| {
+            let out = if n == 0 {
+                Vec::new()
+            } else if n <= limit {
+                let (lo, hi) = t.c_values(&hb);
+                vec![(
+                    Segment {
+                        a: t.a,
+                        b: t.b,
+                        c_lo: lo,
+                        c_hi: hi,
+                    },
+                    n,
+                )]
+            } else {
+                split(*t, &whole(t).count_by_c(&hb), limit)
+            };
+            progress.advance(1);
+            out
+        })
+        .collect();
+    let mut chunks: Vec<PlannedChunk> = Vec::new();
+    for (seg, n) in pieces.into_iter().flatten() {
+        match chunks.last_mut() {
+            Some(ch) if ch.candidates + n <= limit => {
+                ch.segments.push(seg);
+                ch.candidates += n;
+            }
+            _ => chunks.push(PlannedChunk {
+                segments: vec![seg],
+                candidates: n,
+            }),
+        }
+    }
+    Ok(Plan {
+        params: *params,
+        shards: shards.max(1),
+        chunks,
+    })
+}
+
+impl Plan {
+    /// All candidates of the build.
+    pub fn candidates(&self) -> u64 {
+        self.chunks.iter().map(|c| c.candidates).sum()
+    }
+
+    /// The chunk indices of each of `n` shards, balanced by candidates: the largest chunks
+    /// first, each to the shard with the least work so far (ties to the lower index), then
+    /// each shard's chunks in index order. Deterministic.
+    pub fn shards(&self, n: usize) -> Vec<Vec<usize>> {
+        let mut order: Vec<usize> = (0..self.chunks.len()).collect();
+        order.sort_by_key(|&k| (std::cmp::Reverse(self.chunks[k].candidates), k));
+        let mut load = vec![0u64; n.max(1)];
+        let mut out = vec![Vec::new(); n.max(1)];
+        for k in order {
+            let s = (0..load.len())
+                .min_by_key(|&s| (load[s], s))
+                .expect("one shard");
+            load[s] += self.chunks[k].candidates;
+            out[s].push(k);
+        }
+        for s in &mut out {
+            s.sort();
+        }
+        out
+    }
+}
+
+/// The model of a build, calibrated by `cargo bench --bench build` on the development
+/// machine (2 cores; the figures are in the bench's output and DEVELOPERS.md): candidates
+/// per class, CPU seconds per candidate and per class, bytes per class of the table and of
+/// the runs. A rule of thumb, not a bound: `plan` prints it, `build` checks the free disk
+/// against it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Model {
+    /// Candidates met per class found.
+    pub candidates_per_class: f64,
+    /// CPU seconds per candidate (classification, on one core).
+    pub seconds_per_candidate: f64,
+    /// CPU seconds per class (annotation, local data, grouping and writing).
+    pub seconds_per_class: f64,
+    /// Bytes per class of the finished table.
+    pub table_bytes_per_class: f64,
+    /// Bytes per class of the runs (deleted after the merge).
+    pub run_bytes_per_class: f64,
+}
+
+/// The calibrated model (see [`Model`]).
+pub const MODEL: Model = Model {
+    candidates_per_class: 8.6,
+    seconds_per_candidate: 2.2e-6,
+    seconds_per_class: 1.6e-5,
+    table_bytes_per_class: 245.0,
+    run_bytes_per_class: 60.0,
+};
+
+/// What a build is expected to take.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Estimate {
+    /// Candidates (exact, counted).
+    pub candidates: u64,
+    /// Classes expected.
+    pub classes: f64,
+    /// Wall-clock seconds on `threads` cores.
+    pub seconds: f64,
+    /// Bytes of the table.
+    pub table_bytes: f64,
+    /// Peak bytes on disk during the build (runs and table together).
+    pub disk_bytes: f64,
+    /// Peak resident memory in bytes.
+    pub memory_bytes: f64,
+}
+
+impl Model {
+    /// The estimate for a plan (or for a share of its candidates) on `threads` cores.
+    pub fn estimate(&self, candidates: u64, threads: usize) -> Estimate {
+        let classes = candidates as f64 / self.candidates_per_class;
+        let cpu = candidates as f64 * self.seconds_per_candidate + classes * self.seconds_per_class;
+        let table = classes * self.table_bytes_per_class;
+        // Each worker holds one chunk's rows (about 500 bytes each in memory) while it
+        // sorts them; the merge holds a batch of pairs and a buffer per run.
+        let chunk_rows = CHUNK_CANDIDATES as f64 / self.candidates_per_class;
+        let memory = 80e6 + threads as f64 * chunk_rows * 500.0;
+        Estimate {
+            candidates,
+            classes,
+            seconds: cpu / threads.max(1) as f64,
+            table_bytes: table,
+            disk_bytes: table + classes * self.run_bytes_per_class,
+            memory_bytes: memory,
+        }
+    }
+}
