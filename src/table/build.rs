@@ -254,7 +254,7 @@ pub fn build_table(
         None => {
             let p = plan(params, 1, progress)?;
             if !opts.skip_disk_check {
-                let need = MODEL.estimate(p.candidates(), 1).disk_bytes;
+                let need = p.estimate(None, 1, &MODEL).disk_bytes;
                 if let Some(free) = free_bytes(&dir) {
                     if (free as f64) < need {
                         return Err(Error::Io(format!(

@@ -47,6 +47,8 @@ pub struct Segment {
     pub c_lo: i64,
     /// Last value of c.
     pub c_hi: i64,
+    /// Candidates the loops meet in the segment.
+    pub candidates: u64,
 }
 
 impl Segment {
@@ -91,6 +93,7 @@ fn split(task: Task, counts: &[(i64, u64)], limit: u64) -> Vec<(Segment, u64)> {
         match out.last_mut() {
             Some((seg, m)) if *m + n <= limit => {
                 seg.c_hi = c;
+                seg.candidates += n;
                 *m += n;
             }
             _ => out.push((
@@ -99,6 +102,7 @@ fn split(task: Task, counts: &[(i64, u64)], limit: u64) -> Vec<(Segment, u64)> {
                     b: task.b,
                     c_lo: c,
                     c_hi: c,
+                    candidates: n,
                 },
                 n,
             )),
@@ -149,6 +153,7 @@ pub fn plan(params: &Params, shards: usize, progress: &dyn Progress) -> Result<P
                         b: t.b,
                         c_lo: lo,
                         c_hi: hi,
+                        candidates: n,
                     },
                     n,
                 )]
@@ -185,19 +190,40 @@ impl Plan {
         self.chunks.iter().map(|c| c.candidates).sum()
     }
 
-    /// The chunk indices of each of `n` shards, balanced by candidates: the largest chunks
-    /// first, each to the shard with the least work so far (ties to the lower index), then
-    /// each shard's chunks in index order. Deterministic.
+    /// The expected work of each chunk, in units of one classless candidate: every
+    /// candidate costs 1, and each class found costs [`CLASS_COST`] more; the classes of a
+    /// segment are its candidates times the yield of [`class_yield`] at its leading
+    /// coefficient.
+    pub fn work(&self) -> Vec<f64> {
+        let x = self.params.height as f64;
+        self.chunks
+            .iter()
+            .map(|c| {
+                c.segments
+                    .iter()
+                    .map(|s| {
+                        let n = s.candidates as f64;
+                        n * (1.0 + CLASS_COST * class_yield(s.a, x))
+                    })
+                    .sum()
+            })
+            .collect()
+    }
+
+    /// The chunk indices of each of `n` shards, balanced by [`Plan::work`]: the largest
+    /// chunks first, each to the shard with the least work so far (ties to the lower index),
+    /// then each shard's chunks in index order. Deterministic.
     pub fn shards(&self, n: usize) -> Vec<Vec<usize>> {
+        let work = self.work();
         let mut order: Vec<usize> = (0..self.chunks.len()).collect();
-        order.sort_by_key(|&k| (std::cmp::Reverse(self.chunks[k].candidates), k));
-        let mut load = vec![0u64; n.max(1)];
+        order.sort_by(|&i, &j| work[j].total_cmp(&work[i]).then(i.cmp(&j)));
+        let mut load = vec![0f64; n.max(1)];
         let mut out = vec![Vec::new(); n.max(1)];
         for k in order {
             let s = (0..load.len())
-                .min_by_key(|&s| (load[s], s))
+                .min_by(|&s, &t| load[s].total_cmp(&load[t]).then(s.cmp(&t)))
                 .expect("one shard");
-            load[s] += self.chunks[k].candidates;
+            load[s] += work[k];
             out[s].push(k);
         }
         for s in &mut out {
@@ -207,19 +233,51 @@ impl Plan {
     }
 }
 
+/// The cost of a class over a classless candidate (annotation with local data, grouping and
+/// writing), measured by the bench (`cargo bench --bench build`, per-|a| timings).
+pub const CLASS_COST: f64 = 12.0;
+
+/// The fraction of the candidates with leading coefficient a that are classes below X, as a
+/// function of `t = |a|/X^{1/6}`: measured on the tables of 10⁷ and 10⁸, where it nearly
+/// agrees between heights (0.33 at t = 0.05, 0.18 at 0.14, 0.05 at 0.23, 0.0025 at 0.33,
+/// none beyond 0.4); linear in between. (X^{1/6} comes from the same function as the loop
+/// bounds, so machines that run the same binary compute the same plan.)
+pub fn class_yield(a: i64, x: f64) -> f64 {
+    const POINTS: [(f64, f64); 10] = [
+        (0.0, 0.36),
+        (0.046, 0.333),
+        (0.093, 0.252),
+        (0.139, 0.181),
+        (0.186, 0.110),
+        (0.232, 0.050),
+        (0.278, 0.015),
+        (0.325, 0.0025),
+        (0.37, 0.0001),
+        (0.40, 0.0),
+    ];
+    if a == 0 {
+        return 0.1; // reducible tasks: a fair share
+    }
+    let t = a.unsigned_abs() as f64 / x.powf(1.0 / 6.0);
+    for w in POINTS.windows(2) {
+        let ((t0, y0), (t1, y1)) = (w[0], w[1]);
+        if t <= t1 {
+            return y0 + (t - t0) / (t1 - t0) * (y1 - y0);
+        }
+    }
+    0.0
+}
+
 /// The model of a build, calibrated by `cargo bench --bench build` on the development
-/// machine (2 cores; the figures are in the bench's output and DEVELOPERS.md): candidates
-/// per class, CPU seconds per candidate and per class, bytes per class of the table and of
-/// the runs. A rule of thumb, not a bound: `plan` prints it, `build` checks the free disk
-/// against it.
+/// machine (2 cores; the figures are in DEVELOPERS.md): CPU seconds per unit of
+/// [`Plan::work`] and per class for the merge, bytes per class of the table and of the runs.
+/// A rule of thumb, not a bound: `plan` prints it, `build` checks the free disk against it.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Model {
-    /// Candidates met per class found.
-    pub candidates_per_class: f64,
-    /// CPU seconds per candidate (classification, on one core).
-    pub seconds_per_candidate: f64,
-    /// CPU seconds per class (annotation, local data, grouping and writing).
-    pub seconds_per_class: f64,
+    /// CPU seconds per unit of work (a classless candidate), on one core.
+    pub seconds_per_unit: f64,
+    /// CPU seconds per class of the merge (grouping over Q, writing, hashing).
+    pub merge_seconds_per_class: f64,
     /// Bytes per class of the finished table.
     pub table_bytes_per_class: f64,
     /// Bytes per class of the runs (deleted after the merge).
@@ -228,21 +286,20 @@ pub struct Model {
 
 /// The calibrated model (see [`Model`]).
 pub const MODEL: Model = Model {
-    candidates_per_class: 8.6,
-    seconds_per_candidate: 2.2e-6,
-    seconds_per_class: 1.6e-5,
+    seconds_per_unit: 2.3e-6,
+    merge_seconds_per_class: 1.2e-5,
     table_bytes_per_class: 245.0,
     run_bytes_per_class: 60.0,
 };
 
-/// What a build is expected to take.
+/// What a build (or a share of it) is expected to take.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Estimate {
     /// Candidates (exact, counted).
     pub candidates: u64,
     /// Classes expected.
     pub classes: f64,
-    /// Wall-clock seconds on `threads` cores.
+    /// Wall-clock seconds on the threads given.
     pub seconds: f64,
     /// Bytes of the table.
     pub table_bytes: f64,
@@ -252,22 +309,41 @@ pub struct Estimate {
     pub memory_bytes: f64,
 }
 
-impl Model {
-    /// The estimate for a plan (or for a share of its candidates) on `threads` cores.
-    pub fn estimate(&self, candidates: u64, threads: usize) -> Estimate {
-        let classes = candidates as f64 / self.candidates_per_class;
-        let cpu = candidates as f64 * self.seconds_per_candidate + classes * self.seconds_per_class;
-        let table = classes * self.table_bytes_per_class;
+impl Plan {
+    /// The expected estimate for the chunks `share` (all when `None`) on `threads` cores,
+    /// the merge included only for the whole build.
+    pub fn estimate(&self, share: Option<&[usize]>, threads: usize, m: &Model) -> Estimate {
+        let x = self.params.height as f64;
+        let all: Vec<usize> = (0..self.chunks.len()).collect();
+        let ks = share.unwrap_or(&all);
+        let work = self.work();
+        let (mut candidates, mut classes, mut units) = (0u64, 0f64, 0f64);
+        for &k in ks {
+            candidates += self.chunks[k].candidates;
+            units += work[k];
+            classes += self.chunks[k]
+                .segments
+                .iter()
+                .map(|s| s.candidates as f64 * class_yield(s.a, x))
+                .sum::<f64>();
+        }
+        let merge = if share.is_none() {
+            classes * m.merge_seconds_per_class
+        } else {
+            0.0
+        };
+        let seconds = units * m.seconds_per_unit / threads.max(1) as f64 + merge;
+        let table = classes * m.table_bytes_per_class;
         // Each worker holds one chunk's rows (about 500 bytes each in memory) while it
-        // sorts them; the merge holds a batch of pairs and a buffer per run.
-        let chunk_rows = CHUNK_CANDIDATES as f64 / self.candidates_per_class;
-        let memory = 80e6 + threads as f64 * chunk_rows * 500.0;
+        // sorts them; the merge a batch of pairs and a buffer per run.
+        let biggest = self.chunks.iter().map(|c| c.candidates).max().unwrap_or(0) as f64;
+        let memory = 80e6 + threads as f64 * biggest * 0.36 * 500.0;
         Estimate {
             candidates,
             classes,
-            seconds: cpu / threads.max(1) as f64,
+            seconds,
             table_bytes: table,
-            disk_bytes: table + classes * self.run_bytes_per_class,
+            disk_bytes: table + classes * m.run_bytes_per_class,
             memory_bytes: memory,
         }
     }

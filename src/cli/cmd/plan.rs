@@ -6,7 +6,7 @@ use crate::out::emit;
 use crate::progress::Bar;
 use qorbits::arith::parse::parse_height;
 use qorbits::error::Error;
-use qorbits::table::plan::{plan, Plan, MODEL};
+use qorbits::table::plan::{plan, Estimate, Plan, MODEL};
 use qorbits::table::row::Params;
 use std::fmt::Write;
 use std::path::{Path, PathBuf};
@@ -75,7 +75,7 @@ pub fn run(a: Args) -> Result<(), Error> {
     let threads = a.jobs.run(|| Ok(rayon::current_num_threads()))?;
     let p = a.jobs.run(|| plan(&params, a.shards.unwrap_or(1), &bar))?;
     bar.finish();
-    let e = MODEL.estimate(p.candidates(), threads);
+    let e = p.estimate(None, threads, &MODEL);
     let mut out = String::new();
     writeln!(
         out,
@@ -119,16 +119,26 @@ pub fn run(a: Args) -> Result<(), Error> {
             return Err(Error::Input("--shards must be at least 1".into()));
         }
         let shards = p.shards(n);
-        let loads: Vec<u64> = shards
+        let work = p.work();
+        let loads: Vec<f64> = shards
             .iter()
-            .map(|s| s.iter().map(|&k| p.chunks[k].candidates).sum())
+            .map(|s| s.iter().map(|&k| work[k]).sum())
             .collect();
-        let max = *loads.iter().max().unwrap_or(&0);
-        let mean = loads.iter().sum::<u64>() as f64 / n as f64;
-        let one = MODEL.estimate(max, a.cpus);
-        writeln!(out, "shards      {n}: the largest holds {max} candidates ({:.3}× the mean), about {} on {} cores each", max as f64 / mean.max(1.0), duration(one.seconds), a.cpus).expect("string");
+        let big = (0..n)
+            .max_by(|&i, &j| loads[i].total_cmp(&loads[j]))
+            .unwrap_or(0);
+        let mean = loads.iter().sum::<f64>() / n as f64;
+        let one = p.estimate(Some(&shards[big]), a.cpus, &MODEL);
+        writeln!(
+            out,
+            "shards      {n}: the largest is {:.3}× the mean work, about {} on {} cores",
+            loads[big] / mean.max(1.0),
+            duration(one.seconds),
+            a.cpus
+        )
+        .expect("string");
         if let Some(dir) = &a.slurm {
-            write_slurm(dir, &params, &p, n, max, &a)?;
+            write_slurm(dir, &params, &p, n, &one, &a)?;
             writeln!(out, "slurm       wrote {0}/shards.sbatch, {0}/merge.sbatch and {0}/submit.sh; run: bash {0}/submit.sh", dir.display()).expect("string");
         }
     }
@@ -141,7 +151,7 @@ fn write_slurm(
     params: &Params,
     p: &Plan,
     n: usize,
-    max: u64,
+    task: &Estimate,
     a: &Args,
 ) -> Result<(), Error> {
     std::fs::create_dir_all(dir)
@@ -151,8 +161,7 @@ fn write_slurm(
         .map_err(|e| Error::Io(format!("cannot resolve {}: {e}", dir.display())))?;
     let exe = std::env::current_exe()
         .map_err(|e| Error::Io(format!("cannot find the qorbits binary: {e}")))?;
-    let task = MODEL.estimate(max, a.cpus);
-    let all = MODEL.estimate(p.candidates(), a.cpus);
+    let all = p.estimate(None, a.cpus, &MODEL);
     // Generous limits: twice the estimate, at least ten minutes; memory and local disk
     // with a margin of half.
     let time = slurm_time((2.0 * task.seconds).max(600.0));
