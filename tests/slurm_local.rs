@@ -1,7 +1,9 @@
 //! `scripts/slurm-local` gives the test suite a one-node Slurm cluster that runs what a
 //! sharded build needs (DESIGN §7): a job array whose tasks are the shards, a job that
 //! depends on the whole array (the merge), and the rerun of one task that was killed. The
-//! jobs here are shell commands; the cluster is real (slurmctld, slurmd, munged).
+//! first test's jobs are shell commands; the others run the scripts `qorbits plan --slurm`
+//! writes for a sharded build and require the single-machine bytes. The cluster is real
+//! (slurmctld, slurmd, munged).
 //!
 //! The test fails when the cluster cannot be brought up: CI installs the packages through
 //! the script. A guard runs `down` however the test ends.
@@ -24,7 +26,12 @@ struct Cluster {
 
 impl Cluster {
     fn new() -> Cluster {
-        let base = std::env::temp_dir().join(format!("qorbits-slurm-test-{}", std::process::id()));
+        Cluster::named("shell")
+    }
+
+    fn named(name: &str) -> Cluster {
+        let base =
+            std::env::temp_dir().join(format!("qorbits-slurm-{name}-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&base);
         std::fs::create_dir_all(&base).unwrap();
         let dir = base.join("cluster");
@@ -289,4 +296,168 @@ fn array_dependent_merge_and_rerun_of_a_killed_task() {
     let after = c.script("status");
     assert!(!after.status.success());
     assert!(running(&after).is_empty());
+}
+
+/// The qorbits binary and a committed manifest.
+fn qorbits(args: &[&str], cwd: &Path) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_qorbits"))
+        .args(args)
+        .current_dir(cwd)
+        .output()
+        .unwrap()
+}
+
+fn committed(x: &str) -> String {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join(format!("manifests/qorbits-h{x}.manifest.json"))
+        .display()
+        .to_string()
+}
+
+fn up(c: &Cluster) {
+    let up = c.script("up");
+    assert!(
+        up.status.success(),
+        "scripts/slurm-local up failed: {}",
+        text(&up).1
+    );
+}
+
+/// `plan --slurm` for H < X in `n` shards into `dir`; returns the directory.
+fn planned(c: &Cluster, x: &str, n: usize, name: &str) -> PathBuf {
+    let dir = c.base.join(name);
+    let o = qorbits(
+        &[
+            "plan",
+            "--height",
+            x,
+            "--shards",
+            &n.to_string(),
+            "--slurm",
+            dir.to_str().unwrap(),
+            "--cpus",
+            "1",
+            "--quiet",
+        ],
+        &c.base,
+    );
+    assert!(o.status.success(), "plan --slurm: {}", text(&o).1);
+    for f in ["shards.sbatch", "merge.sbatch", "submit.sh"] {
+        assert!(dir.join(f).is_file(), "{f}");
+    }
+    let merge = std::fs::read_to_string(dir.join("merge.sbatch")).unwrap();
+    assert!(
+        merge.contains(" merge ") && merge.contains("verify --db"),
+        "{merge}"
+    );
+    let submit = std::fs::read_to_string(dir.join("submit.sh")).unwrap();
+    assert!(submit.contains("--dependency=afterok:"), "{submit}");
+    dir
+}
+
+fn verify_table(table: &Path, x: &str) {
+    let o = qorbits(
+        &[
+            "verify",
+            "--db",
+            table.to_str().unwrap(),
+            "--manifest",
+            &committed(x),
+        ],
+        Path::new("/"),
+    );
+    let (out, err) = text(&o);
+    assert!(
+        o.status.success() && out.contains("verified: all"),
+        "{out}{err}"
+    );
+}
+
+#[test]
+fn a_sharded_build_through_the_job_array_gives_the_single_machine_hash() {
+    let c = Cluster::named("build");
+    up(&c);
+    let dir = planned(&c, "1000000", 4, "run-1e6");
+    let o = Command::new("bash")
+        .arg(dir.join("submit.sh"))
+        .env("SLURM_CONF", &c.conf)
+        .output()
+        .unwrap();
+    let (out, err) = text(&o);
+    assert!(o.status.success(), "submit.sh: {err}");
+    // "shards: job A; merge: job M"
+    let merge_id = out.trim().rsplit(' ').next().unwrap().to_string();
+    wait_until("the merge job", || {
+        c.state(&merge_id) == "COMPLETED" || c.state(&merge_id) == "FAILED"
+    });
+    assert_eq!(
+        c.state(&merge_id),
+        "COMPLETED",
+        "{}",
+        std::fs::read_to_string(dir.join("logs/merge.log")).unwrap_or_default()
+    );
+    verify_table(&dir.join("qorbits-h1e6.sqlite"), "1e6");
+}
+
+#[test]
+fn a_killed_array_task_resubmitted_completes_the_build() {
+    let c = Cluster::named("rerun");
+    up(&c);
+    // H < 10⁷: shards take seconds, so task 2 can be caught running and killed.
+    let dir = planned(&c, "10000000", 4, "run-1e7");
+    std::fs::create_dir_all(dir.join("logs")).unwrap();
+    std::fs::create_dir_all(dir.join("shards")).unwrap();
+    let array = c.sbatch(&dir, &[dir.join("shards.sbatch").to_str().unwrap()]);
+    let merge = c.sbatch(
+        &dir,
+        &[
+            &format!("--dependency=afterok:{array}"),
+            dir.join("merge.sbatch").to_str().unwrap(),
+        ],
+    );
+    let task2 = format!("{array}_2");
+    wait_until("task 2 to run", || {
+        let s = c.states(&array);
+        s.get("2").is_some_and(|st| st == "RUNNING")
+            || s.get("2").is_some_and(|st| st == "COMPLETED")
+    });
+    let was = c.states(&array)["2"].clone();
+    eprintln!("task 2 was {was} when it was killed");
+    c.slurm(&c.base, "scancel", &["--signal=KILL", &task2]);
+    wait_until("the other tasks and the kill", || {
+        let s = c.states(&array);
+        ["1", "3", "4"]
+            .iter()
+            .all(|k| s.get(*k).is_some_and(|st| st == "COMPLETED"))
+            && s.get("2")
+                .is_some_and(|st| st != "RUNNING" && st != "PENDING")
+    });
+    if was == "RUNNING" {
+        // The merge waits for a dependency that can no longer be met.
+        wait_until("the merge to stay pending", || c.state(&merge) == "PENDING");
+        assert!(!dir.join("qorbits-h1e7.sqlite").exists());
+        c.slurm(&c.base, "scancel", &[&merge]);
+    }
+    // Resubmit only the failed index, and a merge after it.
+    let rerun = c.sbatch(
+        &dir,
+        &["--array=2", dir.join("shards.sbatch").to_str().unwrap()],
+    );
+    let merge2 = c.sbatch(
+        &dir,
+        &[
+            &format!("--dependency=afterok:{rerun}"),
+            dir.join("merge.sbatch").to_str().unwrap(),
+        ],
+    );
+    wait_until("the second merge", || {
+        matches!(c.state(&merge2).as_str(), "COMPLETED" | "FAILED")
+    });
+    assert_eq!(
+        c.state(&merge2),
+        "COMPLETED",
+        "{}",
+        std::fs::read_to_string(dir.join("logs/merge.log")).unwrap_or_default()
+    );
+    verify_table(&dir.join("qorbits-h1e7.sqlite"), "1e7");
 }
