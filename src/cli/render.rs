@@ -5,8 +5,9 @@
 use qorbits::form::describe::{height_decimal, Description};
 use qorbits::form::galois::FactorPattern;
 use qorbits::form::local::{everywhere_soluble, insoluble_places, LocalPlace};
-use qorbits::form::{Gl2, Signature};
+use qorbits::form::Signature;
 use qorbits::table::json;
+use qorbits::table::lookup::matrix_json;
 use qorbits::table::row::ClassRow;
 use rug::Integer;
 use serde_json::Value;
@@ -141,14 +142,6 @@ pub fn form_text<T: std::fmt::Display>(c: &[T]) -> String {
         .map(ToString::to_string)
         .collect::<Vec<_>>()
         .join(" ")
-}
-
-fn matrix_json(g: &Gl2<Integer>) -> Value {
-    let [p, q, r, s] = &g.m;
-    Value::Array(vec![
-        Value::Array(vec![json::int(p), json::int(q)]),
-        Value::Array(vec![json::int(r), json::int(s)]),
-    ])
 }
 
 /// The description of a class as one JSON object (docs/output.md, `reduce`).

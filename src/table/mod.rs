@@ -2,14 +2,15 @@
 //! ([`classify`]), the grouping into labelled pairs ([`group`]), the pipeline and the build
 //! ([`pipeline`]), the storage contract ([`schema`]), the writer ([`writer`]) with its
 //! atomic files ([`atomic`]), the reader ([`reader`]), the hashes ([`hash`]), manifests and
-//! verification ([`manifest`]), the JSON number rule ([`json`]), queries by invariants ([`query`]) and counts against the
-//! asymptotic main terms ([`stats`]).
+//! verification ([`manifest`]), the JSON number rule ([`json`]), queries by invariants ([`query`]), lookups of
+//! any form ([`lookup`]) and counts against the asymptotic main terms ([`stats`]).
 
 pub mod atomic;
 pub mod classify;
 pub mod group;
 pub mod hash;
 pub mod json;
+pub mod lookup;
 pub mod manifest;
 pub mod pipeline;
 pub mod query;

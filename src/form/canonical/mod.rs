@@ -36,6 +36,9 @@ use crate::form::covariant::{point_f64, point_mp, Point};
 use crate::form::{Form, Gl2};
 use rug::Integer;
 
+mod fast;
+pub use fast::{canonical_f64, settle_f64, Settled};
+
 /// The tolerance η of the fundamental domain `F_η`.
 pub const ETA: f64 = 1e-9;
 /// Points closer than this to the boundary of `F_η` are decided with MPFR.
@@ -128,14 +131,14 @@ pub fn translates_into_strip(f: &Form<i128>) -> Result<Vec<Translate>> {
 }
 
 /// Whether `z` lies in `F_{tol}` (a cheap f64 prefilter).
-fn near_f(z: (f64, f64), tol: f64) -> bool {
+pub(crate) fn near_f(z: (f64, f64), tol: f64) -> bool {
     z.1 > 0.0
         && z.0 >= -tol
         && z.0 <= 0.5 + tol
         && z.0 * z.0 + z.1 * z.1 >= (1.0 - tol) * (1.0 - tol)
 }
 
-fn coeffs_f64<T: Int>(f: &Form<T>) -> [f64; 5] {
+pub(crate) fn coeffs_f64<T: Int>(f: &Form<T>) -> [f64; 5] {
     std::array::from_fn(|k| f.c[k].to_f64())
 }
 
@@ -187,6 +190,9 @@ pub fn in_f_eta<T: Int>(f: &Form<T>, hint: Option<&Point<f64>>) -> Result<bool> 
     };
     if let Some(p) = p64 {
         if let Some(inside) = decide(p, WINDOW) {
+            return Ok(inside);
+        }
+        if let Some(inside) = fast::decide_on_mirrors(f, &boundary_distances(&p.x, &p.y))? {
             return Ok(inside);
         }
     }
@@ -288,10 +294,21 @@ pub fn canonical_in<T: Int>(f: &Form<T>) -> Result<Canonical<T>> {
         gamma = mv.mul(&gamma).ok_or(Error::Overflow)?;
     }
     let z = settled.ok_or_else(|| Error::Numerical(format!("reduction of {f} did not settle")))?;
-    let z = (z.re.to_f64(), z.im.to_f64());
+    best_member(f, &g, &gamma, (z.re.to_f64(), z.im.to_f64()), None)
+}
+
+/// The canonical representative from a member `g = gamma·f` whose point `z` is in F: the
+/// smallest neighbour of `g` with its own point in `F_η` (`hint`: the f64 point of `g`).
+pub(crate) fn best_member<T: Int>(
+    f: &Form<T>,
+    g: &Form<T>,
+    gamma: &Gl2<T>,
+    z: (f64, f64),
+    hint: Option<&Point<f64>>,
+) -> Result<Canonical<T>> {
     let mut best: Option<(Form<T>, Gl2<T>)> = None;
-    for n in NEIGHBOURS {
-        if !near_f(move_point(&n, z), ETA + WINDOW) {
+    for (k, n) in NEIGHBOURS.iter().enumerate() {
+        if !near_f(move_point(n, z), ETA + WINDOW) {
             continue;
         }
         let step = Gl2::new(n[0], n[1], n[2], n[3]);
@@ -299,8 +316,8 @@ pub fn canonical_in<T: Int>(f: &Form<T>) -> Result<Canonical<T>> {
         if best.as_ref().is_some_and(|(b, _)| *b <= h) {
             continue;
         }
-        if in_f_eta(&h, None)? {
-            best = Some((h, step.mul(&gamma).ok_or(Error::Overflow)?));
+        if in_f_eta(&h, if k == 0 { hint } else { None })? {
+            best = Some((h, step.mul(gamma).ok_or(Error::Overflow)?));
         }
     }
     let (form, gamma) =
@@ -326,6 +343,11 @@ pub fn canonical(f: &Form<Integer>) -> Result<Canonical<Integer>> {
         )));
     }
     if let Some(small) = Form::<i128>::try_small(f) {
+        match canonical_f64(&small) {
+            Ok(c) => return Ok(c.to_big()),
+            Err(Error::Overflow) => {}
+            Err(e) => return Err(e),
+        }
         match canonical_in(&small) {
             Ok(c) => return Ok(c.to_big()),
             Err(Error::Overflow) => {}
