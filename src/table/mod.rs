@@ -17,5 +17,6 @@ pub mod query;
 pub mod reader;
 pub mod row;
 pub mod schema;
+pub mod select;
 pub mod stats;
 pub mod writer;
