@@ -33,6 +33,7 @@ enum Command {
     Stats(cmd::stats::Args),
     Selmer(cmd::selmer::Args),
     SelmerStats(cmd::selmer_stats::Args),
+    Export(cmd::export::Args),
 }
 
 fn dispatch(c: Command) -> Result<ExitCode, Error> {
@@ -45,6 +46,7 @@ fn dispatch(c: Command) -> Result<ExitCode, Error> {
         Command::Stats(a) => cmd::stats::run(a)?,
         Command::Selmer(a) => cmd::selmer::run(a)?,
         Command::SelmerStats(a) => cmd::selmer_stats::run(a)?,
+        Command::Export(a) => cmd::export::run(a)?,
     }
     Ok(ExitCode::SUCCESS)
 }

@@ -7,6 +7,7 @@
 
 pub mod atomic;
 pub mod classify;
+pub mod export;
 pub mod group;
 pub mod hash;
 pub mod json;

@@ -4,6 +4,7 @@
 pub mod build;
 pub mod cite;
 pub mod classes;
+pub mod export;
 pub mod reduce;
 pub mod selmer;
 pub mod selmer_stats;
