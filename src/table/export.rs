@@ -149,8 +149,10 @@ pub fn export(
         None => read_error(conn, e),
     })?;
     let total: i64 = if filter.is_none() {
-        conn.query_row("SELECT coalesce(sum(classes), 0) FROM pairs", [], |r| r.get(0))
-            .map_err(|e| read_error(conn, e))?
+        conn.query_row("SELECT coalesce(sum(classes), 0) FROM pairs", [], |r| {
+            r.get(0)
+        })
+        .map_err(|e| read_error(conn, e))?
     } else {
         0
     };

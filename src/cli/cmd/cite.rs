@@ -55,7 +55,7 @@ pub fn describe_params(p: &Params, classes: u64) -> String {
     )
 }
 
-fn this_year() -> i64 {
+pub fn this_year() -> i64 {
     let secs = std::time::SystemTime::now()
         .duration_since(std::time::UNIX_EPOCH)
         .map_or(0, |d| d.as_secs() as i64);
@@ -109,13 +109,14 @@ pub fn run(a: Args) -> Result<(), Error> {
     Ok(())
 }
 
-struct Citation<'a> {
-    params: Params,
-    hash: String,
-    classes: u64,
-    year: i64,
-    url: Option<String>,
-    file: &'a Path,
+/// A citation of a table (BibTeX and CITATION.cff), shared with `qorbits release`.
+pub struct Citation<'a> {
+    pub params: Params,
+    pub hash: String,
+    pub classes: u64,
+    pub year: i64,
+    pub url: Option<String>,
+    pub file: &'a Path,
 }
 
 impl Citation<'_> {
@@ -138,7 +139,7 @@ impl Citation<'_> {
             .filter(|u| u.starts_with("10.") && u.contains('/'))
     }
 
-    fn bibtex(&self) -> String {
+    pub fn bibtex(&self) -> String {
         let name = self
             .file
             .file_name()
@@ -180,7 +181,7 @@ impl Citation<'_> {
         format!("@misc{{{key},\n{}\n}}\n", body.join(",\n"))
     }
 
-    fn cff(&self) -> String {
+    pub fn cff(&self) -> String {
         let q = |s: &str| format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""));
         let mut ids = vec![format!(
             "  - type: other\n    value: {}\n    description: \"content SHA-256 of the table (the recipe is in its manifest)\"",

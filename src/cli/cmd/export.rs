@@ -92,7 +92,9 @@ pub fn run(a: Args) -> Result<(), Error> {
     let io = |e: std::io::Error| Error::Io(format!("cannot write the export: {e}"));
     if a.gzip {
         // No name and no time in the header: the same table gives the same bytes.
-        let mut gz = GzBuilder::new().mtime(0).write(sink, Compression::default());
+        let mut gz = GzBuilder::new()
+            .mtime(0)
+            .write(sink, Compression::default());
         export(&conn, format, a.filter.as_deref(), &mut gz, &bar)?;
         gz.finish().and_then(|mut w| w.flush()).map_err(io)?;
     } else {
