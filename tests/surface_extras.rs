@@ -18,20 +18,33 @@ use std::path::Path;
 use std::process::{Command, Output, Stdio};
 
 fn qorbits(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_qorbits")).args(args).output().unwrap()
+    Command::new(env!("CARGO_BIN_EXE_qorbits"))
+        .args(args)
+        .output()
+        .unwrap()
 }
 
 fn ok(args: &[&str]) -> String {
     let o = qorbits(args);
-    assert!(o.status.success(), "{args:?}: {}", String::from_utf8_lossy(&o.stderr));
+    assert!(
+        o.status.success(),
+        "{args:?}: {}",
+        String::from_utf8_lossy(&o.stderr)
+    );
     String::from_utf8(o.stdout).unwrap()
 }
 
 fn classes(db: &Path) -> Vec<(i64, String, [i64; 5])> {
     let c = rusqlite::Connection::open(db).unwrap();
-    let mut st = c.prepare("SELECT id, label, a, b, c, d, e FROM classes ORDER BY id").unwrap();
+    let mut st = c
+        .prepare("SELECT id, label, a, b, c, d, e FROM classes ORDER BY id")
+        .unwrap();
     st.query_map([], |r| {
-        Ok((r.get(0)?, r.get(1)?, [r.get(2)?, r.get(3)?, r.get(4)?, r.get(5)?, r.get(6)?]))
+        Ok((
+            r.get(0)?,
+            r.get(1)?,
+            [r.get(2)?, r.get(3)?, r.get(4)?, r.get(5)?, r.get(6)?],
+        ))
     })
     .unwrap()
     .collect::<Result<_, _>>()
@@ -48,7 +61,11 @@ fn batch_lookup_finds_every_class_of_the_tier_from_any_member() {
     for (_, _, f) in &all {
         let g = random_gl2(&mut rng, 6);
         let h = Form::<Integer>::from_i64(*f).act(&g).unwrap();
-        input += &h.c.iter().map(|c| c.to_string()).collect::<Vec<_>>().join(" ");
+        input +=
+            &h.c.iter()
+                .map(|c| c.to_string())
+                .collect::<Vec<_>>()
+                .join(" ");
         input.push('\n');
     }
     // Errors on their own lines do not stop the batch; comments and blank lines are skipped.
@@ -76,31 +93,59 @@ fn batch_lookup_finds_every_class_of_the_tier_from_any_member() {
         assert_eq!(v["table"]["label"], label.as_str(), "{v}");
         assert_eq!(v["form"], serde_json::json!(form), "{v}");
         // γ·input = the canonical form.
-        let input: Vec<i64> = v["input"].as_array().unwrap().iter().map(|x| x.as_i64().unwrap()).collect();
-        let g: Vec<i64> = v["gamma"].as_array().unwrap().iter().flat_map(|r| r.as_array().unwrap().iter().map(|x| x.as_i64().unwrap())).collect();
+        let input: Vec<i64> = v["input"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|x| x.as_i64().unwrap())
+            .collect();
+        let g: Vec<i64> = v["gamma"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .flat_map(|r| r.as_array().unwrap().iter().map(|x| x.as_i64().unwrap()))
+            .collect();
         let moved = Form::<Integer>::from_i64(input.try_into().unwrap())
             .act(&qorbits::form::Gl2::new(g[0], g[1], g[2], g[3]))
             .unwrap();
         assert_eq!(moved, Form::from_i64(*form));
     }
     let tail = &lines[all.len()..];
-    assert!(tail[0]["error"].as_str().unwrap().contains("expected 5"), "{}", tail[0]);
+    assert!(
+        tail[0]["error"].as_str().unwrap().contains("expected 5"),
+        "{}",
+        tail[0]
+    );
     assert_eq!(tail[0]["line"], all.len() + 3);
-    assert!(tail[1]["error"].as_str().unwrap().contains("discriminant 0"));
+    assert!(tail[1]["error"]
+        .as_str()
+        .unwrap()
+        .contains("discriminant 0"));
     assert_eq!(tail[2]["table"]["covered"], false);
-    assert!(tail[2]["table"]["reason"].as_str().unwrap().contains("not below the table's bound 100000"));
+    assert!(tail[2]["table"]["reason"]
+        .as_str()
+        .unwrap()
+        .contains("not below the table's bound 100000"));
     // The same class through `reduce --db` in text and JSON.
     let t = ok(&["reduce", "2", "1", "-5", "-8", "6", "--db", dbs]);
     assert!(t.contains("not below the table's bound 100000"), "{t}");
     let t = ok(&["reduce", "2", "0", "0", "0", "1", "--db", dbs]);
     assert!(t.contains("table        Q24_0_002, row id 173"), "{t}");
-    let j: serde_json::Value = serde_json::from_str(&ok(&["reduce", "--json", "1", "0", "0", "0", "2", "--db", dbs])).unwrap();
+    let j: serde_json::Value = serde_json::from_str(&ok(&[
+        "reduce", "--json", "1", "0", "0", "0", "2", "--db", dbs,
+    ]))
+    .unwrap();
     assert_eq!(j["table"]["label"], "Q24_0_002");
 }
 
 /// Runs Python on a script with arguments and returns its stdout.
 fn python(script: &str, args: &[&str]) -> String {
-    let o = Command::new("python3").arg("-c").arg(script).args(args).output().expect("python3");
+    let o = Command::new("python3")
+        .arg("-c")
+        .arg(script)
+        .args(args)
+        .output()
+        .expect("python3");
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     String::from_utf8(o.stdout).unwrap()
 }
@@ -112,8 +157,27 @@ fn exports_read_back_with_python_match_the_table() {
     let d = TestDir::new("export");
     let csv = d.join("t.csv.gz");
     let jsonl = d.join("t.jsonl");
-    ok(&["export", "--db", dbs, "--format", "csv", "--gzip", "--out", csv.to_str().unwrap(), "--quiet"]);
-    ok(&["export", "--db", dbs, "--format", "jsonl", "--out", jsonl.to_str().unwrap(), "--quiet"]);
+    ok(&[
+        "export",
+        "--db",
+        dbs,
+        "--format",
+        "csv",
+        "--gzip",
+        "--out",
+        csv.to_str().unwrap(),
+        "--quiet",
+    ]);
+    ok(&[
+        "export",
+        "--db",
+        dbs,
+        "--format",
+        "jsonl",
+        "--out",
+        jsonl.to_str().unwrap(),
+        "--quiet",
+    ]);
     // Python's gzip, csv, json and sqlite3 modules: counts, every id in order, and every
     // 37th row field by field against the table.
     let check = r#"
@@ -139,11 +203,35 @@ for t in table[::37]:
     assert o["rational_class_id"] == t[19]
 print(len(rows))
 "#;
-    let n = python(check, &[dbs, csv.to_str().unwrap(), jsonl.to_str().unwrap()]);
+    let n = python(
+        check,
+        &[dbs, csv.to_str().unwrap(), jsonl.to_str().unwrap()],
+    );
     assert_eq!(n.trim(), "1498");
-    let c4 = ok(&["export", "--db", dbs, "--format", "csv", "--where", "galois = 'C4'", "--quiet"]);
-    assert_eq!(c4.lines().count(), 1 + 10, "the 10 C4 classes of the manifest, and the header");
-    let o = qorbits(&["export", "--db", dbs, "--format", "csv", "--where", "nosuch = 1"]);
+    let c4 = ok(&[
+        "export",
+        "--db",
+        dbs,
+        "--format",
+        "csv",
+        "--where",
+        "galois = 'C4'",
+        "--quiet",
+    ]);
+    assert_eq!(
+        c4.lines().count(),
+        1 + 10,
+        "the 10 C4 classes of the manifest, and the header"
+    );
+    let o = qorbits(&[
+        "export",
+        "--db",
+        dbs,
+        "--format",
+        "csv",
+        "--where",
+        "nosuch = 1",
+    ]);
     assert_eq!(o.status.code(), Some(2));
 }
 
@@ -163,7 +251,12 @@ fn png_stats(path: &Path) -> (u32, u32, f64, usize) {
         }
         colours.insert(p[..3.min(px)].to_vec());
     }
-    (info.width, info.height, ink as f64 / (pixels.len() / px) as f64, colours.len())
+    (
+        info.width,
+        info.height,
+        ink as f64 / (pixels.len() / px) as f64,
+        colours.len(),
+    )
 }
 
 fn render_svg(svg: &Path) -> (u32, u32, f64, usize) {
@@ -181,9 +274,21 @@ fn pictures_render_to_png_non_blank_and_of_the_stated_size() {
     let db = tier_1e5();
     let d = TestDir::new("plots");
     let counts = d.join("counts.svg");
-    ok(&["plot", "--db", db.to_str().unwrap(), "--out", counts.to_str().unwrap()]);
+    ok(&[
+        "plot",
+        "--db",
+        db.to_str().unwrap(),
+        "--out",
+        counts.to_str().unwrap(),
+    ]);
     let svg = std::fs::read_to_string(&counts).unwrap();
-    for words in ["X, the height bound", "number of classes with H &lt; X", "main term", "2 real roots", "Ratio of the count"] {
+    for words in [
+        "X, the height bound",
+        "number of classes with H &lt; X",
+        "main term",
+        "2 real roots",
+        "Ratio of the count",
+    ] {
         assert!(svg.contains(words), "counts.svg lacks {words:?}");
     }
     let (w, h, ink, colours) = render_svg(&counts);
@@ -191,14 +296,27 @@ fn pictures_render_to_png_non_blank_and_of_the_stated_size() {
     assert!(ink > 0.01 && ink < 0.5, "ink {ink}");
     assert!(colours > 20, "{colours} colours: the series are drawn");
     let avg = d.join("avg.svg");
-    ok(&["selmer-stats", "--height", "3000", "--quiet", "--plot", avg.to_str().unwrap()]);
+    ok(&[
+        "selmer-stats",
+        "--height",
+        "3000",
+        "--quiet",
+        "--plot",
+        avg.to_str().unwrap(),
+    ]);
     let svg = std::fs::read_to_string(&avg).unwrap();
     assert!(svg.contains("published limit 3") && svg.contains("Y, the height bound"));
     let (w, h, ink, _) = render_svg(&avg);
     assert_eq!((w, h), (1000, 760));
     assert!(ink > 0.005, "ink {ink}");
     // An existing file is not replaced without --force.
-    let o = qorbits(&["plot", "--db", db.to_str().unwrap(), "--out", counts.to_str().unwrap()]);
+    let o = qorbits(&[
+        "plot",
+        "--db",
+        db.to_str().unwrap(),
+        "--out",
+        counts.to_str().unwrap(),
+    ]);
     assert_eq!(o.status.code(), Some(2));
 }
 
@@ -207,29 +325,63 @@ fn the_release_folder_verifies_and_its_page_renders_in_chromium() {
     let db = tier_1e5();
     let d = TestDir::new("release");
     let out = d.join("rel");
-    ok(&["release", "--db", db.to_str().unwrap(), "--out", out.to_str().unwrap(), "--year", "2026"]);
-    let o = Command::new("sha256sum").arg("-c").arg("SHA256SUMS").current_dir(&out).output().unwrap();
+    ok(&[
+        "release",
+        "--db",
+        db.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--year",
+        "2026",
+    ]);
+    let o = Command::new("sha256sum")
+        .arg("-c")
+        .arg("SHA256SUMS")
+        .current_dir(&out)
+        .output()
+        .unwrap();
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stdout));
-    assert_eq!(String::from_utf8_lossy(&o.stdout).matches(": OK").count(), 5);
+    assert_eq!(
+        String::from_utf8_lossy(&o.stdout).matches(": OK").count(),
+        5
+    );
     // The gzipped table is the table, and the manifest verifies it.
     let gz = std::fs::File::open(out.join("qorbits-h1e5.sqlite.gz")).unwrap();
     let mut bytes = Vec::new();
     std::io::Read::read_to_end(&mut flate2::read::GzDecoder::new(gz), &mut bytes).unwrap();
     assert_eq!(bytes, std::fs::read(&db).unwrap());
     let html = std::fs::read_to_string(out.join("index.html")).unwrap();
-    let m = qorbits::table::manifest::read_manifest(&out.join("qorbits-h1e5.manifest.json")).unwrap();
-    for needle in [m.content_sha256.as_str(), m.file.sha256.as_str(), "sha256sum -c SHA256SUMS", "@misc{", "1498", "0.164", "counts.svg"] {
+    let m =
+        qorbits::table::manifest::read_manifest(&out.join("qorbits-h1e5.manifest.json")).unwrap();
+    for needle in [
+        m.content_sha256.as_str(),
+        m.file.sha256.as_str(),
+        "sha256sum -c SHA256SUMS",
+        "@misc{",
+        "1498",
+        "0.164",
+        "counts.svg",
+    ] {
         assert!(html.contains(needle), "index.html lacks {needle}");
     }
-    assert!(!html.contains("http://") && !html.contains("https://"), "the page needs no network");
+    assert!(
+        !html.contains("http://") && !html.contains("https://"),
+        "the page needs no network"
+    );
     let cff = std::fs::read_to_string(out.join("CITATION.cff")).unwrap();
     assert!(cff.starts_with("cff-version: 1.2.0") && cff.contains(&m.content_sha256));
     let shot = d.join("page.png");
     let profile = d.join("profile");
     let o = Command::new("chromium")
         .args([
-            "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-            "--disable-background-networking", "--disable-component-update", "--disable-sync",
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-quic",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
             &format!("--user-data-dir={}", profile.display()),
             &format!("--screenshot={}", shot.display()),
             "--window-size=1200,1600",
@@ -237,11 +389,18 @@ fn the_release_folder_verifies_and_its_page_renders_in_chromium() {
         ])
         .output()
         .expect("chromium (Debian) is needed: bash scripts/setup --tests");
-    assert!(shot.exists(), "no screenshot: {}", String::from_utf8_lossy(&o.stderr));
+    assert!(
+        shot.exists(),
+        "no screenshot: {}",
+        String::from_utf8_lossy(&o.stderr)
+    );
     let (w, h, ink, colours) = png_stats(&shot);
     assert_eq!((w, h), (1200, 1600));
     assert!(ink > 0.02, "the page is blank: {ink}");
-    assert!(colours > 50, "text, tables and the picture: {colours} colours");
+    assert!(
+        colours > 50,
+        "text, tables and the picture: {colours} colours"
+    );
 }
 
 #[test]
@@ -278,11 +437,17 @@ fn completions_load_in_bash_and_the_man_page_renders() {
         .stdout(Stdio::piped())
         .spawn()
         .and_then(|mut c| {
-            c.stdin.take().unwrap().write_all(ok(&["man", "export"]).as_bytes())?;
+            c.stdin
+                .take()
+                .unwrap()
+                .write_all(ok(&["man", "export"]).as_bytes())?;
             c.wait_with_output()
         })
         .unwrap();
     let text = String::from_utf8_lossy(&o.stdout);
-    assert!(text.contains("qorbits-export") && text.contains("--where"), "{text}");
+    assert!(
+        text.contains("qorbits-export") && text.contains("--where"),
+        "{text}"
+    );
     assert_eq!(qorbits(&["man", "nosuch"]).status.code(), Some(2));
 }
