@@ -214,6 +214,8 @@ fn no_documented_query_scans_the_whole_table() {
         for sql in text.split("-- query:").skip(1) {
             let sql = sql.split(';').next().unwrap();
             let sql = sql.split_once('\n').map_or(sql, |(_, s)| s);
+            // In Python the SQL is a triple-quoted string.
+            let sql = sql.split_once("\"\"\"").map_or(sql, |(_, s)| s);
             let sql: String = sql
                 .lines()
                 .map(|l| l.trim().trim_start_matches('"').trim_end_matches('"'))
