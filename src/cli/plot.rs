@@ -2,6 +2,7 @@
 //! terms of the asymptotic count and the ratio panel (`qorbits plot`, the release page), and
 //! the average size of the 2-Selmer group against Y with its limit (`selmer-stats --plot`).
 
+use plotters::coord::Shift;
 use plotters::prelude::*;
 use qorbits::error::Error;
 use qorbits::table::stats::main_term;
@@ -11,6 +12,65 @@ pub const SIZE: (u32, u32) = (1000, 760);
 
 fn drawing<E: std::fmt::Display>(e: E) -> Error {
     Error::Io(format!("cannot draw the picture: {e}"))
+}
+
+/// The grid and the axis descriptions of a chart (a macro: the coordinate types differ).
+macro_rules! mesh {
+    ($chart:expr, $x:expr, $y:expr) => {
+        $chart
+            .configure_mesh()
+            .x_desc($x)
+            .y_desc($y)
+            .label_style(("sans-serif", 14))
+            .draw()
+            .map_err(drawing)?
+    };
+}
+
+/// An SVG picture of [`SIZE`] with a title, drawn by `draw` on the area below the title.
+fn picture(
+    title: &str,
+    draw: impl FnOnce(&DrawingArea<SVGBackend<'_>, Shift>) -> Result<(), Error>,
+) -> Result<String, Error> {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
+        root.fill(&WHITE).map_err(drawing)?;
+        let root = root.titled(title, ("sans-serif", 20)).map_err(drawing)?;
+        draw(&root)?;
+        root.present().map_err(drawing)?;
+    }
+    Ok(svg)
+}
+
+/// The legend box of a chart, at `pos`.
+fn legend<'a, DB: DrawingBackend + 'a, CT: CoordTranslate>(
+    chart: &mut ChartContext<'a, DB, CT>,
+    pos: SeriesLabelPosition,
+) -> Result<(), Error> {
+    chart
+        .configure_series_labels()
+        .position(pos)
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .label_font(("sans-serif", 14))
+        .draw()
+        .map_err(drawing)
+}
+
+/// A solid line of width 2 with its legend entry.
+fn solid<'a, DB: DrawingBackend + 'a, X: Ranged<ValueType = f64>, Y: Ranged<ValueType = f64>>(
+    chart: &mut ChartContext<'a, DB, Cartesian2d<X, Y>>,
+    pts: Vec<(f64, f64)>,
+    c: RGBColor,
+    label: String,
+) -> Result<(), Error> {
+    chart
+        .draw_series(LineSeries::new(pts, c.stroke_width(2)))
+        .map_err(drawing)?
+        .label(label)
+        .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], c.stroke_width(2)));
+    Ok(())
 }
 
 /// `n` points from `lo` to `hi`, evenly spaced on a log scale.
@@ -37,72 +97,48 @@ fn colour(k: usize) -> RGBColor {
 /// The counts by signature against X (log axes) with the main terms, and below them the
 /// ratios count / main term. `counts[k]` are the counts with 4, 2, 0 real roots below `xs[k]`.
 pub fn counts_svg(xs: &[f64], counts: &[[u64; 3]], bound: i128) -> Result<String, Error> {
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
-        root.fill(&WHITE).map_err(drawing)?;
-        let root = root
-            .titled(
-                &format!("Classes of irreducible integral binary quartic forms with H < X (table bound {bound})"),
-                ("sans-serif", 20),
-            )
-            .map_err(drawing)?;
-        let (upper, lower) = root.split_vertically(470);
-        let (x0, x1) = (xs[0], *xs.last().expect("points"));
-        let ymax = xs
-            .iter()
-            .map(|&x| main_term(2, x))
-            .chain(counts.iter().flat_map(|c| c.iter().map(|&n| n as f64)))
-            .fold(10.0, f64::max)
-            * 1.5;
-        let mut chart = ChartBuilder::on(&upper)
-            .margin(12)
-            .margin_right(40)
-            .x_label_area_size(40)
-            .y_label_area_size(80)
-            .build_cartesian_2d((x0..x1).log_scale(), (0.5..ymax).log_scale())
-            .map_err(drawing)?;
-        chart
-            .configure_mesh()
-            .x_desc("X, the height bound")
-            .y_desc("number of classes with H < X")
-            .label_style(("sans-serif", 14))
-            .draw()
-            .map_err(drawing)?;
-        for (k, (real, name)) in SIGNATURES.iter().enumerate() {
-            let c = colour(k);
-            let pts: Vec<(f64, f64)> = xs
+    picture(
+        &format!(
+            "Classes of irreducible integral binary quartic forms with H < X (table bound {bound})"
+        ),
+        |root| {
+            let (upper, lower) = root.split_vertically(470);
+            let (x0, x1) = (xs[0], *xs.last().expect("points"));
+            let ymax = xs
                 .iter()
-                .zip(counts)
-                .filter(|(_, n)| n[k] > 0)
-                .map(|(&x, n)| (x, n[k] as f64))
-                .collect();
-            chart
-                .draw_series(LineSeries::new(pts, c.stroke_width(2)))
-                .map_err(drawing)?
-                .label(format!("{name}: classes in the table"))
-                .legend(move |(x, y)| {
-                    PathElement::new(vec![(x, y), (x + 24, y)], c.stroke_width(2))
-                });
-            let terms: Vec<(f64, f64)> = xs.iter().map(|&x| (x, main_term(*real, x))).collect();
-            let weight = [4, 32, 8][k];
-            chart
-                .draw_series(DashedLineSeries::new(terms, 8, 5, c.stroke_width(1)))
-                .map_err(drawing)?
-                .label(format!("{name}: main term ({weight}/135) zeta(2) X^(5/6)"))
-                .legend(move |(x, y)| {
-                    PathElement::new(vec![(x, y), (x + 10, y)], c.stroke_width(1))
-                });
-        }
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperLeft)
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
-            .label_font(("sans-serif", 14))
-            .draw()
-            .map_err(drawing)?;
-        let mut ratios = ChartBuilder::on(&lower)
+                .map(|&x| main_term(2, x))
+                .chain(counts.iter().flat_map(|c| c.iter().map(|&n| n as f64)))
+                .fold(10.0, f64::max)
+                * 1.5;
+            let mut chart = ChartBuilder::on(&upper)
+                .margin(12)
+                .margin_right(40)
+                .x_label_area_size(40)
+                .y_label_area_size(80)
+                .build_cartesian_2d((x0..x1).log_scale(), (0.5..ymax).log_scale())
+                .map_err(drawing)?;
+            mesh!(chart, "X, the height bound", "number of classes with H < X");
+            for (k, (real, name)) in SIGNATURES.iter().enumerate() {
+                let c = colour(k);
+                let pts: Vec<(f64, f64)> = xs
+                    .iter()
+                    .zip(counts)
+                    .filter(|(_, n)| n[k] > 0)
+                    .map(|(&x, n)| (x, n[k] as f64))
+                    .collect();
+                solid(&mut chart, pts, c, format!("{name}: classes in the table"))?;
+                let terms: Vec<(f64, f64)> = xs.iter().map(|&x| (x, main_term(*real, x))).collect();
+                let weight = [4, 32, 8][k];
+                chart
+                    .draw_series(DashedLineSeries::new(terms, 8, 5, c.stroke_width(1)))
+                    .map_err(drawing)?
+                    .label(format!("{name}: main term ({weight}/135) zeta(2) X^(5/6)"))
+                    .legend(move |(x, y)| {
+                        PathElement::new(vec![(x, y), (x + 10, y)], c.stroke_width(1))
+                    });
+            }
+            legend(&mut chart, SeriesLabelPosition::UpperLeft)?;
+            let mut ratios = ChartBuilder::on(&lower)
             .margin(12)
             .margin_right(40)
             .x_label_area_size(40)
@@ -113,39 +149,16 @@ pub fn counts_svg(xs: &[f64], counts: &[[u64; 3]], bound: i128) -> Result<String
             )
             .build_cartesian_2d((x0..x1).log_scale(), 0.0..1.1)
             .map_err(drawing)?;
-        ratios
-            .configure_mesh()
-            .x_desc("X, the height bound")
-            .y_desc("count / main term")
-            .label_style(("sans-serif", 14))
-            .draw()
-            .map_err(drawing)?;
-        for (k, (real, name)) in SIGNATURES.iter().enumerate() {
-            let c = colour(k);
-            let pts: Vec<(f64, f64)> = xs
-                .iter()
-                .zip(counts)
-                .map(|(&x, n)| (x, n[k] as f64 / main_term(*real, x)))
-                .collect();
-            ratios
-                .draw_series(LineSeries::new(pts, c.stroke_width(2)))
-                .map_err(drawing)?
-                .label(*name)
-                .legend(move |(x, y)| {
-                    PathElement::new(vec![(x, y), (x + 24, y)], c.stroke_width(2))
-                });
-        }
-        ratios
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperLeft)
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
-            .label_font(("sans-serif", 14))
-            .draw()
-            .map_err(drawing)?;
-        root.present().map_err(drawing)?;
-    }
-    Ok(svg)
+            mesh!(ratios, "X, the height bound", "count / main term");
+            for (k, (real, name)) in SIGNATURES.iter().enumerate() {
+                let ratio = |(&x, n): (&f64, &[u64; 3])| (x, n[k] as f64 / main_term(*real, x));
+                let pts = xs.iter().zip(counts).map(ratio).collect();
+                solid(&mut ratios, pts, colour(k), name.to_string())?;
+            }
+            legend(&mut ratios, SeriesLabelPosition::UpperLeft)?;
+            Ok(())
+        },
+    )
 }
 
 /// The average size of the 2-Selmer group over the curves with height below Y, against Y
@@ -156,40 +169,24 @@ pub fn selmer_svg(
     decades: &[(f64, f64)],
     height: i128,
 ) -> Result<String, Error> {
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
-        root.fill(&WHITE).map_err(drawing)?;
-        let root = root
-            .titled(
-                &format!("Average size of the 2-Selmer group of y^2 = x^3 + Ax + B with height below Y (Y up to {height})"),
-                ("sans-serif", 20),
-            )
-            .map_err(drawing)?;
+    picture(&format!("Average size of the 2-Selmer group of y^2 = x^3 + Ax + B with height below Y (Y up to {height})"), |root| {
         let x0 = running.first().map_or(1.0, |p| p.0);
         let x1 = running.last().map_or(10.0, |p| p.0).max(x0 * 10.0);
-        let mut chart = ChartBuilder::on(&root)
+        let mut chart = ChartBuilder::on(root)
             .margin(14)
             .margin_right(40)
             .x_label_area_size(44)
             .y_label_area_size(70)
             .build_cartesian_2d((x0..x1).log_scale(), 0.0..3.6)
             .map_err(drawing)?;
-        chart
-            .configure_mesh()
-            .x_desc("Y, the height bound max(4|A|^3, 27B^2) < Y")
-            .y_desc("average size of the 2-Selmer group")
-            .label_style(("sans-serif", 14))
-            .draw()
-            .map_err(drawing)?;
+        mesh!(chart, "Y, the height bound max(4|A|^3, 27B^2) < Y", "average size of the 2-Selmer group");
         let blue = colour(0);
-        chart
-            .draw_series(LineSeries::new(running.to_vec(), blue.stroke_width(2)))
-            .map_err(drawing)?
-            .label("average over the curves with height below Y")
-            .legend(move |(x, y)| {
-                PathElement::new(vec![(x, y), (x + 24, y)], blue.stroke_width(2))
-            });
+        solid(
+            &mut chart,
+            running.to_vec(),
+            blue,
+            "average over the curves with height below Y".into(),
+        )?;
         let green = colour(2);
         chart
             .draw_series(decades.iter().map(|&p| Circle::new(p, 5, green.filled())))
@@ -207,17 +204,9 @@ pub fn selmer_svg(
             .map_err(drawing)?
             .label("published limit 3 of the average (recalled from memory)")
             .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], red.stroke_width(2)));
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
-            .label_font(("sans-serif", 14))
-            .draw()
-            .map_err(drawing)?;
-        root.present().map_err(drawing)?;
-    }
-    Ok(svg)
+        legend(&mut chart, SeriesLabelPosition::LowerRight)?;
+        Ok(())
+    })
 }
 
 /// The counts picture of a table: 80 values of X from 1000 (the smallest height of a class

@@ -6,6 +6,7 @@ use qorbits::form::describe::{height_decimal, Description};
 use qorbits::form::galois::FactorPattern;
 use qorbits::form::local::{everywhere_soluble, insoluble_places, LocalPlace};
 use qorbits::form::Signature;
+use qorbits::table::export::{core_fields, FORM_COLUMNS};
 use qorbits::table::json;
 use qorbits::table::lookup::matrix_json;
 use qorbits::table::row::ClassRow;
@@ -25,49 +26,33 @@ pub enum Format {
     Csv,
 }
 
-const COLUMNS: [&str; 18] = [
-    "label",
-    "a",
-    "b",
-    "c",
-    "d",
-    "e",
-    "I",
-    "J",
-    "disc",
-    "H4",
-    "real_roots",
-    "signature",
-    "factorisation",
-    "galois",
-    "stabiliser",
-    "els",
-    "insoluble_at",
-    "rational_class",
-];
+/// The columns of a list of classes: [`FORM_COLUMNS`], then the class data.
+fn columns() -> Vec<&'static str> {
+    let mut c = FORM_COLUMNS.to_vec();
+    c.extend([
+        "H4",
+        "real_roots",
+        "signature",
+        "factorisation",
+        "galois",
+        "stabiliser",
+        "els",
+        "insoluble_at",
+        "rational_class",
+    ]);
+    c
+}
 
 fn fields(r: &ClassRow) -> Vec<String> {
-    let [a, b, c, d, e] = r.form;
-    vec![
-        r.label.clone(),
-        a.to_string(),
-        b.to_string(),
-        c.to_string(),
-        d.to_string(),
-        e.to_string(),
-        r.i.to_string(),
-        r.j.to_string(),
-        r.disc.to_string(),
-        r.h4.to_string(),
-        r.signature.real_roots().to_string(),
-        r.signature.name().to_string(),
-        r.pattern.name().to_string(),
+    let mut f = core_fields(r);
+    f.extend([
         r.galois.map(|g| g.name()).unwrap_or("").to_string(),
         r.stabiliser.to_string(),
         u8::from(r.els()).to_string(),
         r.insoluble_at(),
         r.rational.clone().unwrap_or_default(),
-    ]
+    ]);
+    f
 }
 
 /// CSV text (RFC 4180 quoting) of a header and records.
@@ -128,10 +113,10 @@ pub fn rows(rows: &[ClassRow], format: Format) -> String {
             .iter()
             .map(|r| serde_json::to_string(r).expect("rows serialise") + "\n")
             .collect(),
-        Format::Csv => csv(&COLUMNS, rows.iter().map(fields)),
+        Format::Csv => csv(&columns(), rows.iter().map(fields)),
         Format::Text => {
             let table: Vec<Vec<String>> = rows.iter().map(fields).collect();
-            aligned(&COLUMNS, &table) + &count(rows.len(), "class", "classes") + "\n"
+            aligned(&columns(), &table) + &count(rows.len(), "class", "classes") + "\n"
         }
     }
 }

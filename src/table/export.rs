@@ -17,6 +17,7 @@ use crate::error::{Error, Result};
 use crate::form::local::LocalPlace;
 use crate::progress::Progress;
 use crate::table::reader::{for_each_class, read_error, StoredRow, CLASS_COLUMNS};
+use crate::table::row::ClassRow;
 use crate::table::schema::place_to_column;
 use rusqlite::Connection;
 use serde_json::{Map, Value};
@@ -31,18 +32,22 @@ pub enum ExportFormat {
     Jsonl,
 }
 
+/// The names of the first columns of every CSV and text table of classes: the label, the
+/// canonical form, the invariants and the discriminant.
+pub const FORM_COLUMNS: [&str; 9] = ["label", "a", "b", "c", "d", "e", "I", "J", "disc"];
+
 /// The CSV header: the columns of `classes` as the table names them, then `local`.
 pub const CSV_COLUMNS: [&str; 21] = [
     "id",
-    "label",
-    "a",
-    "b",
-    "c",
-    "d",
-    "e",
-    "I",
-    "J",
-    "disc",
+    FORM_COLUMNS[0],
+    FORM_COLUMNS[1],
+    FORM_COLUMNS[2],
+    FORM_COLUMNS[3],
+    FORM_COLUMNS[4],
+    FORM_COLUMNS[5],
+    FORM_COLUMNS[6],
+    FORM_COLUMNS[7],
+    FORM_COLUMNS[8],
     "h4",
     "real_roots",
     "signature",
@@ -75,25 +80,26 @@ pub fn local_text(places: &[LocalPlace<i64>]) -> String {
         .join(";")
 }
 
-/// The CSV record of a class.
-pub fn csv_record(s: &StoredRow) -> Vec<String> {
-    let r = &s.row;
-    let [a, b, c, d, e] = r.form;
-    vec![
-        s.id.to_string(),
-        r.label.clone(),
-        a.to_string(),
-        b.to_string(),
-        c.to_string(),
-        d.to_string(),
-        e.to_string(),
-        r.i.to_string(),
-        r.j.to_string(),
-        r.disc.to_string(),
-        r.h4.to_string(),
+/// The text of the columns `label, a, b, c, d, e, I, J, disc, h4, real_roots, signature,
+/// factorisation` of a class (shared by every CSV and text table of classes).
+pub fn core_fields(r: &ClassRow) -> Vec<String> {
+    let mut f = vec![r.label.clone()];
+    f.extend(r.form.iter().map(i64::to_string));
+    f.extend([r.i, r.j, r.disc, r.h4].map(|v| v.to_string()));
+    f.extend([
         r.signature.real_roots().to_string(),
         r.signature.name().to_string(),
         r.pattern.name().to_string(),
+    ]);
+    f
+}
+
+/// The CSV record of a class.
+pub fn csv_record(s: &StoredRow) -> Vec<String> {
+    let r = &s.row;
+    let mut f = vec![s.id.to_string()];
+    f.extend(core_fields(r));
+    f.extend([
         u8::from(r.irreducible()).to_string(),
         r.galois.map(|g| g.name()).unwrap_or("").to_string(),
         r.stabiliser.to_string(),
@@ -101,7 +107,8 @@ pub fn csv_record(s: &StoredRow) -> Vec<String> {
         r.insoluble_at(),
         s.rational_id.map(|v| v.to_string()).unwrap_or_default(),
         local_text(&r.local),
-    ]
+    ]);
+    f
 }
 
 /// The JSON object of a class in an export: `id`, the keys of a class object

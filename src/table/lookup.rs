@@ -106,6 +106,9 @@ impl Lookup {
     }
 }
 
+/// A class identified through the table: canonical form, invariants, its row.
+type Identified = (Canonical<Integer>, Invariants<Integer>, InTable);
+
 impl Lookup {
     /// `classes.id` and `label` of the class with key `[I, J, a, b, c, d, e]`, if present.
     fn row_of(&self, key: [i64; 7]) -> Result<Option<(i64, String)>> {
@@ -127,10 +130,7 @@ impl Lookup {
     /// boundary of `F_η` has to be made in multiple precision. `None` when the form is not
     /// such a form or no candidate is in the table (then [`reduce_text`] and
     /// [`Lookup::place`] compute the rule and say why).
-    fn through_table(
-        &self,
-        f: &Form<Integer>,
-    ) -> Result<Option<(Canonical<Integer>, Invariants<Integer>, InTable)>> {
+    fn through_table(&self, f: &Form<Integer>) -> Result<Option<Identified>> {
         let Some(small) = Form::<i128>::try_small(f) else {
             return Ok(None);
         };

@@ -237,24 +237,7 @@ impl StoredClass {
 /// is not in it), in table order, with the grouping over Q read back from `rational_class`
 /// (uses the (I, J) index).
 pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
-    let stored = query_all(conn, PAIR_CLASSES_SQL, [i, j], |r| {
-        let mut ints = [0i64; 9];
-        for (k, v) in ints.iter_mut().enumerate() {
-            *v = r.get(k + 2)?;
-        }
-        Ok(StoredClass {
-            id: r.get(0)?,
-            label: r.get(1)?,
-            ints,
-            real_roots: r.get(11)?,
-            signature: r.get(12)?,
-            factorisation: r.get(13)?,
-            irreducible: r.get(14)?,
-            galois: r.get(15)?,
-            stabiliser: r.get(16)?,
-            rational: r.get(17)?,
-        })
-    })?;
+    let stored = query_all(conn, PAIR_CLASSES_SQL, [i, j], stored_class_at)?;
     let damaged = || {
         Error::Database(format!(
             "{}: the pair ({i}, {j}) is inconsistent; the table is damaged",

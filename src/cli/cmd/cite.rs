@@ -55,7 +55,20 @@ pub fn describe_params(p: &Params, classes: u64) -> String {
     )
 }
 
-pub fn this_year() -> i64 {
+/// The year of `--year`, or the current year.
+pub fn citation_year(year: Option<&str>) -> Result<i64, Error> {
+    match year {
+        Some(y) => y
+            .trim()
+            .parse::<i64>()
+            .ok()
+            .filter(|y| (1900..=9999).contains(y))
+            .ok_or_else(|| Error::Input(format!("--year '{y}' is not a year; write e.g. 2026"))),
+        None => Ok(this_year()),
+    }
+}
+
+fn this_year() -> i64 {
     let secs = std::time::SystemTime::now()
         .duration_since(std::time::UNIX_EPOCH)
         .map_or(0, |d| d.as_secs() as i64);
@@ -78,15 +91,7 @@ pub fn run(a: Args) -> Result<(), Error> {
     let classes: i64 = conn
         .query_row("SELECT count(*) FROM classes", [], |r| r.get(0))
         .map_err(Error::from)?;
-    let year = match &a.year {
-        Some(y) => y
-            .trim()
-            .parse::<i64>()
-            .ok()
-            .filter(|y| (1900..=9999).contains(y))
-            .ok_or_else(|| Error::Input(format!("--year '{y}' is not a year; write e.g. 2026")))?,
-        None => this_year(),
-    };
+    let year = citation_year(a.year.as_deref())?;
     let c = Citation {
         params,
         hash,

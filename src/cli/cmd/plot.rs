@@ -12,19 +12,18 @@ use std::path::PathBuf;
 #[derive(clap::Args, Debug)]
 #[command(after_help = "Example:\n  qorbits plot --db qorbits-h1e6.sqlite --out counts.svg")]
 pub struct Args {
-    /// The table (SQLite file).
-    #[arg(long, value_name = "TABLE")]
-    db: PathBuf,
     /// The SVG file to write.
     #[arg(long, value_name = "FILE")]
     out: PathBuf,
+    /// The table to draw (SQLite file).
+    #[arg(long, value_name = "TABLE")]
+    db: PathBuf,
     /// Replace an existing file.
     #[arg(long)]
     force: bool,
 }
 
 pub fn run(a: Args) -> Result<(), Error> {
-    let conn = open_table(&a.db)?;
-    let svg = table_counts_svg(&conn)?;
+    let svg = table_counts_svg(&open_table(&a.db)?)?;
     write_atomic(&a.out, svg.as_bytes(), a.force)
 }

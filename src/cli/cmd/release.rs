@@ -2,7 +2,7 @@
 //! SHA256SUMS file that `sha256sum -c` accepts, CITATION.cff, the counts picture and an
 //! index.html that summarises it all and reads offline.
 
-use crate::cmd::cite::{describe_params, this_year, Citation};
+use crate::cmd::cite::{citation_year, describe_params, Citation};
 use crate::plot::table_counts_svg;
 use flate2::{Compression, GzBuilder};
 use qorbits::error::Error;
@@ -211,15 +211,7 @@ pub fn run(a: Args) -> Result<(), Error> {
     let conn = open_table(&a.db)?;
     let m = manifest_for(&a.db)?;
     let ratios = stats_counts(&conn)?;
-    let year = match &a.year {
-        Some(y) => y
-            .trim()
-            .parse::<i64>()
-            .ok()
-            .filter(|y| (1900..=9999).contains(y))
-            .ok_or_else(|| Error::Input(format!("--year '{y}' is not a year; write e.g. 2026")))?,
-        None => this_year(),
-    };
+    let year = citation_year(a.year.as_deref())?;
     if let Ok(mut entries) = std::fs::read_dir(&a.out) {
         if entries.next().is_some() && !a.force {
             return Err(Error::Exists(a.out.clone()));
