@@ -69,6 +69,22 @@ fn every_usage_error_is_one_line_with_status_2() {
     );
     assert_usage_error(&["cite", "--db", "/no/such/table.sqlite"], "does not exist");
     assert_usage_error(&["cite"], "--db");
+    assert_usage_error(&["classes", "--galois", "D4"], "--db");
+    assert_usage_error(
+        &["classes", "--db", "x.sqlite", "--galois", "Q8"],
+        "--galois 'Q8'",
+    );
+    assert_usage_error(&["classes"], "give the invariants");
+    assert_usage_error(
+        &["export", "--db", "/no/such/table.sqlite", "--format", "csv"],
+        "does not exist",
+    );
+    assert_usage_error(
+        &["reduce", "--batch", "/no/such/forms.txt"],
+        "cannot read the forms",
+    );
+    assert_usage_error(&["completions", "tcsh"], "completions --help");
+    assert_usage_error(&["man", "nosuch"], "not a subcommand");
     // Help and version are not errors.
     for args in [vec!["--help"], vec!["build", "--help"], vec!["--version"]] {
         let o = qorbits(&args);
@@ -89,6 +105,11 @@ fn every_subcommand_help_has_an_example_and_no_stale_text() {
         "stats",
         "selmer",
         "selmer-stats",
+        "export",
+        "plot",
+        "release",
+        "completions",
+        "man",
     ] {
         let h = out(&qorbits(&[sub, "--help"]));
         assert!(h.contains("Example"), "{sub} --help has no example:\n{h}");

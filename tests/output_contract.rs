@@ -259,6 +259,73 @@ fn every_json_output_follows_the_documented_contract() {
     let v = json(&["verify", "--db", dbs, "--json"]);
     check(&v, &c["verify"], "", &[], "verify");
     assert_eq!(v["ok"], true);
+
+    // reduce --db: the class object and its place in the table (covered or not).
+    let mut spec = c["reduce"].clone();
+    spec.extend(c["reduce-table"].clone());
+    for form in [["1", "0", "0", "0", "2"], ["2", "-7", "4", "13", "-6"]] {
+        let mut args = vec!["reduce", "--json", "--db", dbs];
+        args.extend(form);
+        check(&json(&args), &spec, "", &[], "reduce --db");
+    }
+    // selections print class objects.
+    for args in [
+        vec!["classes", "--db", dbs, "--galois", "C4", "--json"],
+        vec!["classes", "--db", dbs, "--height-below", "5000", "--json"],
+    ] {
+        let rows = json(&args);
+        assert!(!rows.as_array().unwrap().is_empty(), "{args:?}");
+        for r in rows.as_array().unwrap() {
+            check(r, &c["class"], "", &[], &format!("{args:?}"));
+        }
+    }
+    // reduce --batch: forms and error lines, with and without a table.
+    let forms = d.join("forms.txt");
+    std::fs::write(
+        &forms,
+        "1 0 0 0 2\n3, 1, 4, 1, 5\nnot a form\n1 2 1 0 0\n[1, 0, 0, 0, 123456789012345678901]\n",
+    )
+    .unwrap();
+    for with_db in [false, true] {
+        let mut args = vec!["reduce", "--batch", forms.to_str().unwrap()];
+        if with_db {
+            args.extend(["--db", dbs]);
+        }
+        let text = String::from_utf8(qorbits(&args)).unwrap();
+        let mut errors = 0;
+        for l in text.lines() {
+            let v: Value = serde_json::from_str(l).unwrap();
+            if v.get("error").is_some() {
+                errors += 1;
+                check(
+                    &v,
+                    &c["reduce-batch-error"],
+                    "",
+                    &[],
+                    "reduce --batch error",
+                );
+            } else {
+                check(&v, &c["reduce-batch"], "", &[], "reduce --batch");
+                assert_eq!(v["table"].is_null(), !with_db);
+            }
+        }
+        assert_eq!((text.lines().count(), errors), (5, 2));
+    }
+    // export --format jsonl: every line.
+    let text = String::from_utf8(qorbits(&[
+        "export", "--db", dbs, "--format", "jsonl", "--quiet",
+    ]))
+    .unwrap();
+    assert!(text.lines().count() > 100);
+    for l in text.lines() {
+        check(
+            &serde_json::from_str(l).unwrap(),
+            &c["export"],
+            "",
+            &[],
+            "export",
+        );
+    }
 }
 
 /// Parses CSV with Python's csv module and returns (header length, row lengths).
@@ -290,6 +357,7 @@ fn python_csv(text: &[u8]) -> (usize, Vec<usize>) {
 
 #[test]
 fn every_csv_reads_back_with_the_header_width() {
+    let tier = common::tier::tier_1e5().to_str().unwrap().to_string();
     for args in [
         // insoluble_at "3,inf" holds a comma and must be quoted.
         vec!["classes", "--I", "10", "--J", "-29", "--csv", "--quiet"],
@@ -312,6 +380,15 @@ fn every_csv_reads_back_with_the_header_width() {
             "--curves",
             "--quiet",
         ],
+        vec![
+            "export",
+            "--db",
+            tier.as_str(),
+            "--format",
+            "csv",
+            "--quiet",
+        ],
+        vec!["classes", "--db", tier.as_str(), "--galois", "D4", "--csv"],
     ] {
         let out = qorbits(&args);
         let (header, rows) = python_csv(&out);

@@ -3,6 +3,7 @@
 
 mod cmd;
 mod out;
+mod plot;
 mod progress;
 mod render;
 
@@ -18,7 +19,7 @@ use std::process::ExitCode;
     about = "Classes of integral binary quartic forms: build, verify and query the table",
     after_help = "Start with: qorbits build --height 1e6, then qorbits verify --db qorbits-h1e6.sqlite"
 )]
-struct Cli {
+pub struct Cli {
     #[command(subcommand)]
     command: Command,
 }
@@ -30,11 +31,16 @@ enum Command {
     Plan(cmd::plan::Args),
     Merge(cmd::merge::Args),
     Verify(cmd::verify::Args),
-    Classes(cmd::classes::Args),
+    Classes(Box<cmd::classes::Args>),
     Cite(cmd::cite::Args),
     Stats(cmd::stats::Args),
     Selmer(cmd::selmer::Args),
     SelmerStats(cmd::selmer_stats::Args),
+    Export(cmd::export::Args),
+    Plot(cmd::plot::Args),
+    Release(cmd::release::Args),
+    Completions(cmd::shell::CompletionsArgs),
+    Man(cmd::shell::ManArgs),
 }
 
 fn dispatch(c: Command) -> Result<ExitCode, Error> {
@@ -44,11 +50,16 @@ fn dispatch(c: Command) -> Result<ExitCode, Error> {
         Command::Plan(a) => cmd::plan::run(a)?,
         Command::Merge(a) => cmd::merge::run(a)?,
         Command::Verify(a) => return cmd::verify::run(a),
-        Command::Classes(a) => cmd::classes::run(a)?,
+        Command::Classes(a) => cmd::classes::run(*a)?,
         Command::Cite(a) => cmd::cite::run(a)?,
         Command::Stats(a) => cmd::stats::run(a)?,
         Command::Selmer(a) => cmd::selmer::run(a)?,
         Command::SelmerStats(a) => cmd::selmer_stats::run(a)?,
+        Command::Export(a) => cmd::export::run(a)?,
+        Command::Plot(a) => cmd::plot::run(a)?,
+        Command::Release(a) => cmd::release::run(a)?,
+        Command::Completions(a) => cmd::shell::completions(a)?,
+        Command::Man(a) => cmd::shell::man(a)?,
     }
     Ok(ExitCode::SUCCESS)
 }

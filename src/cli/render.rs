@@ -5,8 +5,10 @@
 use qorbits::form::describe::{height_decimal, Description};
 use qorbits::form::galois::FactorPattern;
 use qorbits::form::local::{everywhere_soluble, insoluble_places, LocalPlace};
-use qorbits::form::{Gl2, Signature};
+use qorbits::form::Signature;
+use qorbits::table::export::{core_fields, FORM_COLUMNS};
 use qorbits::table::json;
+use qorbits::table::lookup::matrix_json;
 use qorbits::table::row::ClassRow;
 use rug::Integer;
 use serde_json::Value;
@@ -24,49 +26,33 @@ pub enum Format {
     Csv,
 }
 
-const COLUMNS: [&str; 18] = [
-    "label",
-    "a",
-    "b",
-    "c",
-    "d",
-    "e",
-    "I",
-    "J",
-    "disc",
-    "H4",
-    "real_roots",
-    "signature",
-    "factorisation",
-    "galois",
-    "stabiliser",
-    "els",
-    "insoluble_at",
-    "rational_class",
-];
+/// The columns of a list of classes: [`FORM_COLUMNS`], then the class data.
+fn columns() -> Vec<&'static str> {
+    let mut c = FORM_COLUMNS.to_vec();
+    c.extend([
+        "H4",
+        "real_roots",
+        "signature",
+        "factorisation",
+        "galois",
+        "stabiliser",
+        "els",
+        "insoluble_at",
+        "rational_class",
+    ]);
+    c
+}
 
 fn fields(r: &ClassRow) -> Vec<String> {
-    let [a, b, c, d, e] = r.form;
-    vec![
-        r.label.clone(),
-        a.to_string(),
-        b.to_string(),
-        c.to_string(),
-        d.to_string(),
-        e.to_string(),
-        r.i.to_string(),
-        r.j.to_string(),
-        r.disc.to_string(),
-        r.h4.to_string(),
-        r.signature.real_roots().to_string(),
-        r.signature.name().to_string(),
-        r.pattern.name().to_string(),
+    let mut f = core_fields(r);
+    f.extend([
         r.galois.map(|g| g.name()).unwrap_or("").to_string(),
         r.stabiliser.to_string(),
         u8::from(r.els()).to_string(),
         r.insoluble_at(),
         r.rational.clone().unwrap_or_default(),
-    ]
+    ]);
+    f
 }
 
 /// CSV text (RFC 4180 quoting) of a header and records.
@@ -127,10 +113,10 @@ pub fn rows(rows: &[ClassRow], format: Format) -> String {
             .iter()
             .map(|r| serde_json::to_string(r).expect("rows serialise") + "\n")
             .collect(),
-        Format::Csv => csv(&COLUMNS, rows.iter().map(fields)),
+        Format::Csv => csv(&columns(), rows.iter().map(fields)),
         Format::Text => {
             let table: Vec<Vec<String>> = rows.iter().map(fields).collect();
-            aligned(&COLUMNS, &table) + &count(rows.len(), "class", "classes") + "\n"
+            aligned(&columns(), &table) + &count(rows.len(), "class", "classes") + "\n"
         }
     }
 }
@@ -141,14 +127,6 @@ pub fn form_text<T: std::fmt::Display>(c: &[T]) -> String {
         .map(ToString::to_string)
         .collect::<Vec<_>>()
         .join(" ")
-}
-
-fn matrix_json(g: &Gl2<Integer>) -> Value {
-    let [p, q, r, s] = &g.m;
-    Value::Array(vec![
-        Value::Array(vec![json::int(p), json::int(q)]),
-        Value::Array(vec![json::int(r), json::int(s)]),
-    ])
 }
 
 /// The description of a class as one JSON object (docs/output.md, `reduce`).

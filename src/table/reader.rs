@@ -237,24 +237,7 @@ impl StoredClass {
 /// is not in it), in table order, with the grouping over Q read back from `rational_class`
 /// (uses the (I, J) index).
 pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
-    let stored = query_all(conn, PAIR_CLASSES_SQL, [i, j], |r| {
-        let mut ints = [0i64; 9];
-        for (k, v) in ints.iter_mut().enumerate() {
-            *v = r.get(k + 2)?;
-        }
-        Ok(StoredClass {
-            id: r.get(0)?,
-            label: r.get(1)?,
-            ints,
-            real_roots: r.get(11)?,
-            signature: r.get(12)?,
-            factorisation: r.get(13)?,
-            irreducible: r.get(14)?,
-            galois: r.get(15)?,
-            stabiliser: r.get(16)?,
-            rational: r.get(17)?,
-        })
-    })?;
+    let stored = query_all(conn, PAIR_CLASSES_SQL, [i, j], stored_class_at)?;
     let damaged = || {
         Error::Database(format!(
             "{}: the pair ({i}, {j}) is inconsistent; the table is damaged",
@@ -309,4 +292,91 @@ pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
         classes,
         over_q,
     })
+}
+
+/// The columns of `classes` read by [`class_rows`] and [`for_each_class`], qualified by the
+/// alias `c` (the columns of [`PAIR_CLASSES_SQL`], in the same order).
+pub const CLASS_COLUMNS: &str = "c.id, c.label, c.a, c.b, c.c, c.d, c.e, c.I, c.J, c.disc, \
+     c.h4, c.real_roots, c.signature, c.factorisation, c.irreducible, c.galois, c.stabiliser, \
+     c.rational_class";
+
+/// One stored class from a row selecting [`CLASS_COLUMNS`].
+fn stored_class_at(r: &rusqlite::Row<'_>) -> rusqlite::Result<StoredClass> {
+    let mut ints = [0i64; 9];
+    for (k, v) in ints.iter_mut().enumerate() {
+        *v = r.get(k + 2)?;
+    }
+    Ok(StoredClass {
+        id: r.get(0)?,
+        label: r.get(1)?,
+        ints,
+        real_roots: r.get(11)?,
+        signature: r.get(12)?,
+        factorisation: r.get(13)?,
+        irreducible: r.get(14)?,
+        galois: r.get(15)?,
+        stabiliser: r.get(16)?,
+        rational: r.get(17)?,
+    })
+}
+
+/// A class read back in full: its id, the row (local data included, `rational` the label
+/// of the first class of its class over Q) and `classes.rational_class` as stored.
+#[derive(Clone, Debug)]
+pub struct StoredRow {
+    /// `classes.id`.
+    pub id: i64,
+    /// The class.
+    pub row: ClassRow,
+    /// `classes.rational_class`: the id of the first class of its class over Q.
+    pub rational_id: Option<i64>,
+}
+
+/// Calls `f` on every class of a query selecting [`CLASS_COLUMNS`] first, in the query's
+/// order, streaming (one class in memory at a time).
+pub fn for_each_class<P: rusqlite::Params>(
+    conn: &Connection,
+    sql: &str,
+    params: P,
+    mut f: impl FnMut(StoredRow) -> Result<()>,
+) -> Result<()> {
+    let mut st = conn.prepare(sql).map_err(|e| read_error(conn, e))?;
+    let mut rows = st.query(params).map_err(|e| read_error(conn, e))?;
+    while let Some(r) = rows.next().map_err(|e| read_error(conn, e))? {
+        let s = stored_class_at(r).map_err(|e| read_error(conn, e))?;
+        let (id, rational_id) = (s.id, s.rational);
+        let mut row = s.into_class_row(conn)?;
+        if let Some(first) = rational_id {
+            let label: Option<String> = conn
+                .prepare_cached("SELECT label FROM classes WHERE id = ?1")
+                .and_then(|mut q| q.query_row([first], |r| r.get(0)).optional())
+                .map_err(|e| read_error(conn, e))?;
+            row.rational = Some(label.ok_or_else(|| {
+                Error::Database(format!(
+                    "{}: class id {id} names a class over Q that does not exist; the table is damaged",
+                    shown(conn)
+                ))
+            })?);
+        }
+        f(StoredRow {
+            id,
+            row,
+            rational_id,
+        })?;
+    }
+    Ok(())
+}
+
+/// Every class of a query selecting [`CLASS_COLUMNS`] first, in the query's order.
+pub fn class_rows<P: rusqlite::Params>(
+    conn: &Connection,
+    sql: &str,
+    params: P,
+) -> Result<Vec<ClassRow>> {
+    let mut out = Vec::new();
+    for_each_class(conn, sql, params, |s| {
+        out.push(s.row);
+        Ok(())
+    })?;
+    Ok(out)
 }

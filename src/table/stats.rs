@@ -37,3 +37,31 @@ pub fn stats_counts(conn: &Connection) -> Result<[(u8, u64, f64); 3]> {
     }
     Ok(out)
 }
+
+/// The numbers of irreducible classes with H < X and 4, 2, 0 real roots, for each X of
+/// `xs` (increasing): one pass over the classes in table order, which is height order.
+pub fn counts_below(conn: &Connection, xs: &[f64]) -> Result<Vec<[u64; 3]>> {
+    let mut st =
+        conn.prepare("SELECT h4, real_roots FROM classes WHERE irreducible = 1 ORDER BY id")?;
+    let mut rows = st.query([])?;
+    let mut out = vec![[0u64; 3]; xs.len()];
+    let mut now = [0u64; 3];
+    let mut k = 0;
+    while let Some(r) = rows.next()? {
+        let (h4, real): (i64, i64) = (r.get(0)?, r.get(1)?);
+        // Close every X at or below this class's height (H = H4/4 ≥ X).
+        while k < xs.len() && h4 as f64 >= 4.0 * xs[k] {
+            out[k] = now;
+            k += 1;
+        }
+        now[match real {
+            4 => 0,
+            2 => 1,
+            _ => 2,
+        }] += 1;
+    }
+    for slot in &mut out[k..] {
+        *slot = now;
+    }
+    Ok(out)
+}

@@ -4,6 +4,7 @@
 
 pub mod fixture;
 pub mod mutate;
+pub mod tier;
 
 use qorbits::form::{Form, Gl2};
 use rug::Integer;

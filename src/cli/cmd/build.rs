@@ -7,8 +7,9 @@ use crate::progress::Bar;
 use crate::render::count;
 use qorbits::arith::parse::parse_height;
 use qorbits::error::Error;
-use qorbits::table::build::{build_shard, build_table, BuildOptions};
+use qorbits::table::build::{build_table, BuildOptions};
 use qorbits::table::row::Params;
+use qorbits::table::shard::build_shard;
 use std::path::PathBuf;
 
 /// Build the table of every class with H < X (SQLite file and manifest), or one shard.

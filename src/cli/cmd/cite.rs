@@ -55,6 +55,19 @@ pub fn describe_params(p: &Params, classes: u64) -> String {
     )
 }
 
+/// The year of `--year`, or the current year.
+pub fn citation_year(year: Option<&str>) -> Result<i64, Error> {
+    match year {
+        Some(y) => y
+            .trim()
+            .parse::<i64>()
+            .ok()
+            .filter(|y| (1900..=9999).contains(y))
+            .ok_or_else(|| Error::Input(format!("--year '{y}' is not a year; write e.g. 2026"))),
+        None => Ok(this_year()),
+    }
+}
+
 fn this_year() -> i64 {
     let secs = std::time::SystemTime::now()
         .duration_since(std::time::UNIX_EPOCH)
@@ -78,15 +91,7 @@ pub fn run(a: Args) -> Result<(), Error> {
     let classes: i64 = conn
         .query_row("SELECT count(*) FROM classes", [], |r| r.get(0))
         .map_err(Error::from)?;
-    let year = match &a.year {
-        Some(y) => y
-            .trim()
-            .parse::<i64>()
-            .ok()
-            .filter(|y| (1900..=9999).contains(y))
-            .ok_or_else(|| Error::Input(format!("--year '{y}' is not a year; write e.g. 2026")))?,
-        None => this_year(),
-    };
+    let year = citation_year(a.year.as_deref())?;
     let c = Citation {
         params,
         hash,
@@ -109,13 +114,14 @@ pub fn run(a: Args) -> Result<(), Error> {
     Ok(())
 }
 
-struct Citation<'a> {
-    params: Params,
-    hash: String,
-    classes: u64,
-    year: i64,
-    url: Option<String>,
-    file: &'a Path,
+/// A citation of a table (BibTeX and CITATION.cff), shared with `qorbits release`.
+pub struct Citation<'a> {
+    pub params: Params,
+    pub hash: String,
+    pub classes: u64,
+    pub year: i64,
+    pub url: Option<String>,
+    pub file: &'a Path,
 }
 
 impl Citation<'_> {
@@ -138,7 +144,7 @@ impl Citation<'_> {
             .filter(|u| u.starts_with("10.") && u.contains('/'))
     }
 
-    fn bibtex(&self) -> String {
+    pub fn bibtex(&self) -> String {
         let name = self
             .file
             .file_name()
@@ -180,7 +186,7 @@ impl Citation<'_> {
         format!("@misc{{{key},\n{}\n}}\n", body.join(",\n"))
     }
 
-    fn cff(&self) -> String {
+    pub fn cff(&self) -> String {
         let q = |s: &str| format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""));
         let mut ids = vec![format!(
             "  - type: other\n    value: {}\n    description: \"content SHA-256 of the table (the recipe is in its manifest)\"",

@@ -6,7 +6,7 @@ use crate::out::line;
 use crate::progress::Bar;
 use crate::render::count;
 use qorbits::error::Error;
-use qorbits::table::build::merge_shards;
+use qorbits::table::shard::merge_shards;
 use std::path::PathBuf;
 
 /// Merge the shards of a build (each a directory written by `build --shard K/N`) into the

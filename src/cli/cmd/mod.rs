@@ -4,11 +4,15 @@
 pub mod build;
 pub mod cite;
 pub mod classes;
+pub mod export;
 pub mod merge;
 pub mod plan;
+pub mod plot;
 pub mod reduce;
+pub mod release;
 pub mod selmer;
 pub mod selmer_stats;
+pub mod shell;
 pub mod stats;
 pub mod verify;
 

@@ -15,7 +15,7 @@ use serde_json::Value;
 /// max(4|A|^3, 27B^2) below Y (non-singular, minimal, x^3 + A x + B without a rational root).
 #[derive(clap::Args, Debug)]
 #[command(
-    after_help = "Examples:\n  qorbits selmer-stats --height 1e4\n  qorbits selmer-stats --height 1e5 --json --curves"
+    after_help = "Examples:\n  qorbits selmer-stats --height 1e4\n  qorbits selmer-stats --height 1e5 --json --curves\n  qorbits selmer-stats --height 1e5 --plot avg.svg"
 )]
 pub struct Args {
     /// The height bound Y (e.g. 1e4).
@@ -38,6 +38,12 @@ pub struct Args {
     /// No estimate and no progress bar.
     #[arg(long)]
     quiet: bool,
+    /// Also draw the average against Y, with the published limit 3, into this SVG file.
+    #[arg(long, value_name = "FILE")]
+    plot: Option<std::path::PathBuf>,
+    /// Replace an existing --plot file.
+    #[arg(long)]
+    force: bool,
 }
 
 /// The statement of the family for a height bound.
@@ -80,6 +86,10 @@ pub fn run(a: Args) -> Result<(), Error> {
     let bar = Bar::new(a.quiet);
     let st = a.jobs.run(|| selmer_stats(y, &bar))?;
     bar.finish();
+    if let Some(file) = &a.plot {
+        let svg = crate::plot::stats_selmer_svg(&st)?;
+        qorbits::table::atomic::write_atomic(file, svg.as_bytes(), a.force)?;
+    }
     emit(&if a.json {
         let mut v = json::object(vec![
             ("height", json::int(&y.into())),

@@ -36,6 +36,10 @@ use crate::form::covariant::{point_f64, point_mp, Point};
 use crate::form::{Form, Gl2};
 use rug::Integer;
 
+mod fast;
+mod symmetry;
+pub use fast::{canonical_f64, settle_f64, Settled};
+
 /// The tolerance η of the fundamental domain `F_η`.
 pub const ETA: f64 = 1e-9;
 /// Points closer than this to the boundary of `F_η` are decided with MPFR.
@@ -128,14 +132,14 @@ pub fn translates_into_strip(f: &Form<i128>) -> Result<Vec<Translate>> {
 }
 
 /// Whether `z` lies in `F_{tol}` (a cheap f64 prefilter).
-fn near_f(z: (f64, f64), tol: f64) -> bool {
+pub(crate) fn near_f(z: (f64, f64), tol: f64) -> bool {
     z.1 > 0.0
         && z.0 >= -tol
         && z.0 <= 0.5 + tol
         && z.0 * z.0 + z.1 * z.1 >= (1.0 - tol) * (1.0 - tol)
 }
 
-fn coeffs_f64<T: Int>(f: &Form<T>) -> [f64; 5] {
+pub(crate) fn coeffs_f64<T: Int>(f: &Form<T>) -> [f64; 5] {
     std::array::from_fn(|k| f.c[k].to_f64())
 }
 
@@ -174,79 +178,6 @@ fn decide<R: Real>(p: &Point<R>, window: f64) -> Option<bool> {
     Some(d.iter().all(|v| v.to_f64() >= 0.0))
 }
 
-/// Where the elements of [`NEIGHBOURS`] (after the identity) fix points of H: the line or
-/// circle of a reflection, or the one fixed point of a rotation. Index k + 1 of NEIGHBOURS
-/// has `FIXED[k]`.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-enum Fixed {
-    /// Re z = 0 (z ↦ −z̄), boundary piece 0.
-    LineZero,
-    /// Re z = ½ (z ↦ 1 − z̄), boundary piece 1.
-    LineHalf,
-    /// |z| = 1 (z ↦ 1/z̄), boundary piece 2.
-    Circle,
-    /// |z − 1| = 1 (z ↦ z̄/(z̄ − 1)), not a boundary piece.
-    CircleOne,
-    /// The point i (z ↦ −1/z).
-    PointI,
-    /// The point e^{πi/3} (the rotations of order 3).
-    PointRho,
-}
-
-const FIXED: [Fixed; 7] = [
-    Fixed::LineZero,
-    Fixed::LineHalf,
-    Fixed::Circle,
-    Fixed::PointI,
-    Fixed::PointRho,
-    Fixed::PointRho,
-    Fixed::CircleOne,
-];
-
-/// [`decide`] for a point near the boundary of `F_η` from the symmetries of `f`: if g·f = ±f
-/// for g ∈ PGL2(Z) then z(f) = z(g·f) = g(z(f)) (DESIGN §3), so z(f) lies exactly on the
-/// fixed set of g. Two such sets that meet (or a rotation) give the point exactly — i or
-/// e^{πi/3}, both in `F_η` — and one line gives the distance to its boundary piece exactly
-/// (+η, inside); the pieces the point is not near are decided from the f64 point as in
-/// [`decide`]. `None` when the symmetries do not settle it (then MPFR decides).
-fn decide_by_symmetry<T: Int>(f: &Form<T>, p: &Point<f64>) -> Result<Option<bool>> {
-    let minus = f.scale(-1).ok_or(Error::Overflow)?;
-    let mut fixed = Vec::new();
-    for (n, kind) in NEIGHBOURS[1..].iter().zip(FIXED) {
-        let g = f
-            .act(&Gl2::new(n[0], n[1], n[2], n[3]))
-            .ok_or(Error::Overflow)?;
-        if g == *f || g == minus {
-            fixed.push(kind);
-        }
-    }
-    let has = |k: Fixed| fixed.contains(&k);
-    let lines = [
-        Fixed::LineZero,
-        Fixed::LineHalf,
-        Fixed::Circle,
-        Fixed::CircleOne,
-    ];
-    let on: Vec<Fixed> = lines.into_iter().filter(|k| has(*k)).collect();
-    if has(Fixed::PointI) || has(Fixed::PointRho) || on.len() >= 2 {
-        // z(f) is i or e^{πi/3} (Re z = 0 and Re z = ½ never meet in H): inside F_η.
-        return Ok(Some(!(has(Fixed::LineZero) && has(Fixed::LineHalf))));
-    }
-    let d = boundary_distances(&p.x, &p.y);
-    let piece_line = [Fixed::LineZero, Fixed::LineHalf, Fixed::Circle];
-    let mut inside = true;
-    for (k, dist) in d.iter().enumerate() {
-        if on.first() == Some(&piece_line[k]) {
-            continue; // exactly on this piece's line: distance +η
-        }
-        if dist.abs() <= WINDOW {
-            return Ok(None);
-        }
-        inside &= *dist >= 0.0;
-    }
-    Ok(Some(inside))
-}
-
 /// Whether `z(f) ∈ F_η`, decided from the coefficients of `f` (certified near the boundary).
 /// `hint` is an already computed f64 point of `f`.
 pub fn in_f_eta<T: Int>(f: &Form<T>, hint: Option<&Point<f64>>) -> Result<bool> {
@@ -262,7 +193,7 @@ pub fn in_f_eta<T: Int>(f: &Form<T>, hint: Option<&Point<f64>>) -> Result<bool> 
         if let Some(inside) = decide(p, WINDOW) {
             return Ok(inside);
         }
-        if let Some(inside) = decide_by_symmetry(f, p)? {
+        if let Some(inside) = symmetry::decide_by_symmetry(f, p)? {
             return Ok(inside);
         }
     }
@@ -377,10 +308,21 @@ pub fn canonical_in<T: Int>(f: &Form<T>) -> Result<Canonical<T>> {
         gamma = mv.mul(&gamma).ok_or(Error::Overflow)?;
     }
     let z = settled.ok_or_else(|| Error::Numerical(format!("reduction of {f} did not settle")))?;
-    let z = (z.re.to_f64(), z.im.to_f64());
+    best_member(f, &g, &gamma, (z.re.to_f64(), z.im.to_f64()), None)
+}
+
+/// The canonical representative from a member `g = gamma·f` whose point `z` is in F: the
+/// smallest neighbour of `g` with its own point in `F_η` (`hint`: the f64 point of `g`).
+pub(crate) fn best_member<T: Int>(
+    f: &Form<T>,
+    g: &Form<T>,
+    gamma: &Gl2<T>,
+    z: (f64, f64),
+    hint: Option<&Point<f64>>,
+) -> Result<Canonical<T>> {
     let mut best: Option<(Form<T>, Gl2<T>)> = None;
-    for n in NEIGHBOURS {
-        if !near_f(move_point(&n, z), ETA + WINDOW) {
+    for (k, n) in NEIGHBOURS.iter().enumerate() {
+        if !near_f(move_point(n, z), ETA + WINDOW) {
             continue;
         }
         let step = Gl2::new(n[0], n[1], n[2], n[3]);
@@ -388,8 +330,8 @@ pub fn canonical_in<T: Int>(f: &Form<T>) -> Result<Canonical<T>> {
         if best.as_ref().is_some_and(|(b, _)| *b <= h) {
             continue;
         }
-        if in_f_eta(&h, None)? {
-            best = Some((h, step.mul(&gamma).ok_or(Error::Overflow)?));
+        if in_f_eta(&h, if k == 0 { hint } else { None })? {
+            best = Some((h, step.mul(gamma).ok_or(Error::Overflow)?));
         }
     }
     let (form, gamma) =
@@ -415,6 +357,11 @@ pub fn canonical(f: &Form<Integer>) -> Result<Canonical<Integer>> {
         )));
     }
     if let Some(small) = Form::<i128>::try_small(f) {
+        match canonical_f64(&small) {
+            Ok(c) => return Ok(c.to_big()),
+            Err(Error::Overflow) => {}
+            Err(e) => return Err(e),
+        }
         match canonical_in(&small) {
             Ok(c) => return Ok(c.to_big()),
             Err(Error::Overflow) => {}
