@@ -204,10 +204,10 @@ pub fn build(
     progress: &dyn Progress,
 ) -> Result<BuildSummary> {
     let manifest_path = default_manifest_path(out);
+    // Both outputs are checked before any work: neither may be a directory or a link, so
+    // a build never stops after the table with its manifest refused.
     for target in [out, manifest_path.as_path()] {
-        if !replace && std::fs::symlink_metadata(target).is_ok() {
-            return Err(Error::Exists(target.to_path_buf()));
-        }
+        crate::table::atomic::check_target(target, replace)?;
     }
     let table = enumerate_classes(params, progress)?;
     write_table(out, &table, replace)?;
