@@ -43,6 +43,36 @@ pub struct Tree {
     pub rowid: bool,
     /// The values of each record, with their names.
     pub slots: Vec<(String, Slot)>,
+    /// For an index b-tree: how many leading values form the key, which increases strictly
+    /// in tree order.
+    pub key_len: usize,
+}
+
+/// A key value, in SQLite's order for the types a table holds: NULL, integers, text
+/// (compared as bytes, the BINARY collation).
+#[derive(Clone, Debug, PartialEq, Eq, PartialOrd, Ord)]
+enum Key {
+    Null,
+    Int(i64),
+    Text(Vec<u8>),
+}
+
+/// The value of serial type `t` in `b` (its bytes), for the key types.
+fn key_value(t: u64, b: &[u8]) -> Key {
+    match t {
+        0 => Key::Null,
+        8 => Key::Int(0),
+        9 => Key::Int(1),
+        1..=6 => {
+            // Big-endian two's complement of 1, 2, 3, 4, 6 or 8 bytes.
+            let mut v: i64 = if b[0] & 0x80 != 0 { -1 } else { 0 };
+            for &x in b {
+                v = (v << 8) | i64::from(x);
+            }
+            Key::Int(v)
+        }
+        _ => Key::Text(b.to_vec()),
+    }
 }
 
 /// SQLite's variable-length integer: the value and its length in bytes.
@@ -91,18 +121,20 @@ fn admits(s: Slot, t: u64) -> bool {
     }
 }
 
-/// Checks one record against the slots of its tree.
-fn check_record(rec: &[u8], slots: &[(String, Slot)]) -> Result<(), String> {
+/// Checks one record against the slots of its tree; returns its first `key_len` values.
+fn check_record(rec: &[u8], slots: &[(String, Slot)], key_len: usize) -> Result<Vec<Key>, String> {
     let (hs, n) = varint(rec).ok_or("its record header is cut short")?;
     if hs as usize > rec.len() || (hs as usize) < n {
         return Err("its record header is longer than the record".into());
     }
     let (mut at, mut body, mut k) = (n, 0u64, 0usize);
+    let mut types = Vec::new();
     while at < hs as usize {
         let (t, m) = varint(&rec[at..hs as usize]).ok_or("its record header is cut short")?;
         at += m;
         body +=
             serial_len(t).ok_or_else(|| format!("value {} has the reserved type {t}", k + 1))?;
+        types.push(t);
         match slots.get(k) {
             Some((name, s)) if !admits(*s, t) => {
                 return Err(format!(
@@ -128,7 +160,14 @@ fn check_record(rec: &[u8], slots: &[(String, Slot)]) -> Result<(), String> {
     if hs + body != rec.len() as u64 {
         return Err("its record's values do not add up to its length".into());
     }
-    Ok(())
+    let mut at = hs as usize;
+    let mut key = Vec::with_capacity(key_len);
+    for &t in types.iter().take(key_len) {
+        let len = serial_len(t).expect("checked above") as usize;
+        key.push(key_value(t, &rec[at..at + len]));
+        at += len;
+    }
+    Ok(key)
 }
 
 /// Reads page `n` (from 1) of the file.
@@ -155,14 +194,12 @@ impl Walk<'_, '_> {
     fn claim(&mut self, p: u32) -> Result<(), String> {
         if p < 1 || p > self.pages {
             return Err(format!(
-                "refers to page {p}, outside the file's {} pages",
+                "a reference to page {p}, outside the file's {} pages",
                 self.pages
             ));
         }
         if std::mem::replace(&mut self.seen[p as usize], true) {
-            return Err(format!(
-                "refers to page {p}, which another page refers to already"
-            ));
+            return Err(format!("a second reference to page {p}"));
         }
         Ok(())
     }
@@ -181,110 +218,192 @@ impl Walk<'_, '_> {
         Ok(())
     }
 
-    /// Walks one tree; `Err((page, what))`.
+    /// Walks one tree in key order; `Err((page, what))`.
     fn tree(&mut self, t: &Tree) -> Result<(), (u32, String)> {
-        let usable = PAGE_SIZE as usize;
         let mut last_rowid: Option<i64> = None;
-        let mut stack = vec![(t.root, 0usize)];
+        let mut last_key: Option<Vec<Key>> = None;
+        let mut stack = vec![Item::Page(t.root, 0)];
         self.claim(t.root)
             .map_err(|w| (t.root, format!("the root of {}: {w}", t.name)))?;
-        while let Some((p, depth)) = stack.pop() {
-            let page = |w: String| (p, w);
-            if depth > MAX_DEPTH {
-                return Err(page(format!(
-                    "{} is deeper than {MAX_DEPTH} levels",
-                    t.name
-                )));
-            }
-            let b = (self.read)(p).map_err(|e| page(format!("cannot be read ({e})")))?;
-            let h = if p == 1 { 100 } else { 0 };
-            let kind = b[h];
-            let (leaf, table) = match kind {
-                13 => (true, true),
-                5 => (false, true),
-                10 => (true, false),
-                2 => (false, false),
-                _ => return Err(page(format!("has the page type {kind}, not a b-tree page"))),
-            };
-            if table != t.rowid {
-                let what = if table { "a table" } else { "an index" };
-                return Err(page(format!("is {what} page in the tree of {}", t.name)));
-            }
-            let hdr = h + if leaf { 8 } else { 12 };
-            let cells = be16(&b, h + 3);
-            let start = match be16(&b, h + 5) {
-                0 => 65_536,
-                s => s,
-            };
-            if hdr + 2 * cells > start || start > usable {
-                return Err(page(format!("has {cells} cells, more than fit")));
-            }
-            let mut children = Vec::new();
-            for k in 0..cells {
-                let at = be16(&b, hdr + 2 * k);
-                if at < start || at + 4 > usable {
-                    return Err(page(format!("has cell {} outside its cell area", k + 1)));
-                }
-                let cell = &b[at..usable];
-                let what = |w: String| (p, format!("cell {} of {}: {w}", k + 1, t.name));
-                let mut off = 0;
-                if !leaf {
-                    children.push(be32(cell, 0));
-                    off = 4;
-                }
-                if table && !leaf {
-                    varint(&cell[off..]).ok_or_else(|| what("its key is cut short".into()))?;
+        while let Some(item) = stack.pop() {
+            let (p, depth) = match item {
+                Item::Page(p, depth) => (p, depth),
+                Item::Key(p, k, key) => {
+                    // An interior cell of an index b-tree, in order between its children.
+                    if last_key.as_ref().is_some_and(|l| *l >= key) {
+                        return Err((p, format!("cell {k} of {}: its key out of order", t.name)));
+                    }
+                    last_key = Some(key);
                     continue;
                 }
-                let (len, m) = varint(&cell[off..]).ok_or_else(|| what("cut short".into()))?;
-                off += m;
-                if table {
-                    let (rowid, m) =
-                        varint(&cell[off..]).ok_or_else(|| what("cut short".into()))?;
-                    off += m;
-                    let rowid = rowid as i64;
-                    if last_rowid.is_some_and(|r| r >= rowid) {
-                        return Err(what(format!("rowid {rowid} is out of order")));
+            };
+            if depth > MAX_DEPTH {
+                return Err((p, format!("{} deeper than {MAX_DEPTH} levels", t.name)));
+            }
+            let b = (self.read)(p).map_err(|e| (p, format!("unreadable ({e})")))?;
+            let page = self.page(t, p, &b).map_err(|w| (p, w))?;
+            for (k, cell) in page.cells.into_iter().enumerate() {
+                let what = |w: String| (p, format!("cell {} of {}: {w}", k + 1, t.name));
+                match cell {
+                    Cell::Rowid(rowid) => {
+                        if last_rowid.is_some_and(|r| r >= rowid) {
+                            return Err(what(format!("rowid {rowid} out of order")));
+                        }
+                        last_rowid = Some(rowid);
                     }
-                    last_rowid = Some(rowid);
-                }
-                let max_local = if table {
-                    usable - 35
-                } else {
-                    (usable - 12) * 64 / 255 - 23
-                };
-                if len <= max_local as u64 {
-                    let rec = cell
-                        .get(off..off + len as usize)
-                        .ok_or_else(|| what("it runs past the end of the page".into()))?;
-                    check_record(rec, &t.slots).map_err(what)?;
-                } else {
-                    let min_local = (usable - 12) * 32 / 255 - 23;
-                    let k = min_local as u64 + (len - min_local as u64) % (usable as u64 - 4);
-                    let local = if k <= max_local as u64 {
-                        k
-                    } else {
-                        min_local as u64
-                    };
-                    let at = off + local as usize;
-                    let next = cell
-                        .get(at..at + 4)
-                        .ok_or_else(|| what("it runs past the end of the page".into()))?;
-                    let first = u32::from_be_bytes([next[0], next[1], next[2], next[3]]);
-                    self.overflow(first, len - local).map_err(what)?;
+                    Cell::Key(key) if page.leaf => {
+                        if last_key.as_ref().is_some_and(|l| *l >= key) {
+                            return Err(what("its key out of order".into()));
+                        }
+                        last_key = Some(key);
+                    }
+                    Cell::Key(_) | Cell::Child => {}
                 }
             }
-            if !leaf {
-                children.push(be32(&b, h + 8));
-                for &c in children.iter().rev() {
+            if !page.leaf {
+                // Pushed in reverse, so they come off the stack in key order: child 1, cell
+                // 1, child 2, … the right-most child.
+                let n = page.children.len();
+                for (k, (&c, key)) in page.children.iter().zip(page.keys).enumerate().rev() {
+                    if k + 1 < n {
+                        if let Some(key) = key {
+                            stack.push(Item::Key(p, k + 1, key));
+                        }
+                    }
                     self.claim(c)
-                        .map_err(|w| page(format!("{w} (in {})", t.name)))?;
-                    stack.push((c, depth + 1));
+                        .map_err(|w| (p, format!("{w} (in {})", t.name)))?;
+                    stack.push(Item::Page(c, depth + 1));
                 }
             }
         }
         Ok(())
     }
+
+    /// Parses one page of tree `t`: its cells, children and interior keys.
+    fn page(&mut self, t: &Tree, p: u32, b: &[u8]) -> Result<Page, String> {
+        let usable = PAGE_SIZE as usize;
+        let h = if p == 1 { 100 } else { 0 };
+        let kind = b[h];
+        let (leaf, table) = match kind {
+            13 => (true, true),
+            5 => (false, true),
+            10 => (true, false),
+            2 => (false, false),
+            _ => return Err(format!("page type {kind}, not a b-tree page")),
+        };
+        if table != t.rowid {
+            let what = if table { "a table" } else { "an index" };
+            return Err(format!("{what} page in the tree of {}", t.name));
+        }
+        let hdr = h + if leaf { 8 } else { 12 };
+        let n = be16(b, h + 3);
+        let start = match be16(b, h + 5) {
+            0 => 65_536,
+            s => s,
+        };
+        if hdr + 2 * n > start || start > usable {
+            return Err(format!("{n} cells, more than fit"));
+        }
+        let mut out = Page {
+            leaf,
+            cells: Vec::with_capacity(n),
+            children: Vec::new(),
+            keys: Vec::new(),
+        };
+        for k in 0..n {
+            let at = be16(b, hdr + 2 * k);
+            if at < start || at + 4 > usable {
+                return Err(format!("cell {} outside its cell area", k + 1));
+            }
+            let cell = &b[at..usable];
+            let what = |w: &str| format!("cell {} of {}: {w}", k + 1, t.name);
+            let mut off = 0;
+            if !leaf {
+                out.children.push(be32(cell, 0));
+                off = 4;
+            }
+            if table && !leaf {
+                varint(&cell[off..]).ok_or_else(|| what("its key cut short"))?;
+                out.keys.push(None);
+                out.cells.push(Cell::Child);
+                continue;
+            }
+            let (len, m) = varint(&cell[off..]).ok_or_else(|| what("its length cut short"))?;
+            off += m;
+            if table {
+                let (rowid, m) = varint(&cell[off..]).ok_or_else(|| what("its rowid cut short"))?;
+                off += m;
+                out.cells.push(Cell::Rowid(rowid as i64));
+            }
+            let max_local = if table {
+                usable - 35
+            } else {
+                (usable - 12) * 64 / 255 - 23
+            };
+            let key = if len <= max_local as u64 {
+                let rec = cell
+                    .get(off..off + len as usize)
+                    .ok_or_else(|| what("it runs past the end of the page"))?;
+                let key_len = if table { 0 } else { t.key_len };
+                Some(check_record(rec, &t.slots, key_len).map_err(|w| what(&w))?)
+            } else {
+                // Spilled to overflow pages (no qorbits row does): follow the chain only.
+                let min_local = (usable - 12) * 32 / 255 - 23;
+                let k = min_local as u64 + (len - min_local as u64) % (usable as u64 - 4);
+                let local = if k <= max_local as u64 {
+                    k
+                } else {
+                    min_local as u64
+                };
+                let at = off + local as usize;
+                let next = cell
+                    .get(at..at + 4)
+                    .ok_or_else(|| what("it runs past the end of the page"))?;
+                let first = u32::from_be_bytes([next[0], next[1], next[2], next[3]]);
+                self.overflow(first, len - local).map_err(|w| what(&w))?;
+                None
+            };
+            if !table {
+                if leaf {
+                    // A spilled key is not compared.
+                    out.cells.push(key.map_or(Cell::Child, Cell::Key));
+                } else {
+                    out.keys.push(key);
+                    out.cells.push(Cell::Child);
+                }
+            }
+        }
+        if !leaf {
+            out.children.push(be32(b, h + 8));
+            out.keys.push(None);
+        }
+        Ok(out)
+    }
+}
+
+/// What the walk has still to visit: a page, or the key of an interior cell.
+enum Item {
+    Page(u32, usize),
+    Key(u32, usize, Vec<Key>),
+}
+
+/// One cell as the walk needs it.
+enum Cell {
+    /// A table leaf cell's rowid.
+    Rowid(i64),
+    /// An index leaf cell's key.
+    Key(Vec<Key>),
+    /// A cell checked on its own (interior cells).
+    Child,
+}
+
+/// One parsed page.
+struct Page {
+    leaf: bool,
+    cells: Vec<Cell>,
+    children: Vec<u32>,
+    /// The key of each child's following interior cell (index trees).
+    keys: Vec<Option<Vec<Key>>>,
 }
 
 /// Walks every tree of a file of `pages` pages; `Some` names the first damaged page. With
@@ -302,7 +421,7 @@ pub fn locate_damage(
     };
     for t in trees {
         if let Err((p, what)) = w.tree(t) {
-            return Some(format!("page {p} damaged: it {what}").replace("it cell", "its cell"));
+            return Some(format!("page {p} damaged: {what}"));
         }
     }
     if no_freelist {
@@ -326,7 +445,10 @@ mod tests {
         assert_eq!(serial_len(10), None);
         let int = ("x".to_string(), Slot::Int { nullable: false });
         // header 2 bytes: [2, 1], body one byte.
-        assert_eq!(check_record(&[2, 1, 5], std::slice::from_ref(&int)), Ok(()));
+        assert_eq!(
+            check_record(&[2, 1, 0xfb], std::slice::from_ref(&int), 1),
+            Ok(vec![Key::Int(-5)])
+        );
         let e =
             check_record(&[2, 7, 0, 0, 0, 0, 0, 0, 0, 0], std::slice::from_ref(&int)).unwrap_err();
         assert!(e.contains("column x holds REAL"), "{e}");

@@ -67,7 +67,10 @@ struct Reference {
 /// The values of the records of a table or index of the reference, in stored order: a rowid
 /// table's columns (its INTEGER PRIMARY KEY as the rowid), a WITHOUT ROWID table's key
 /// columns then the others, an index's columns then the rowid.
-fn record_slots(c: &Connection, e: &Entry) -> rusqlite::Result<(bool, Vec<(String, Slot)>)> {
+/// With the number of leading values that form the key of an index b-tree.
+type Records = (bool, Vec<(String, Slot)>, usize);
+
+fn record_slots(c: &Connection, e: &Entry) -> rusqlite::Result<Records> {
     let slot = |col: &Column| {
         let nullable = !col.not_null;
         if col.decl == "TEXT" {
@@ -97,7 +100,8 @@ fn record_slots(c: &Connection, e: &Entry) -> rusqlite::Result<(bool, Vec<(Strin
                 )
             })
             .collect();
-        return Ok((!without_rowid, slots));
+        let key_len = if without_rowid { keys } else { 0 };
+        return Ok((!without_rowid, slots, key_len));
     }
     let table = table_columns(c, &e.table)?;
     let mut st = c.prepare("SELECT cid, name FROM pragma_index_xinfo(?1) ORDER BY seqno")?;
@@ -114,9 +118,11 @@ fn record_slots(c: &Connection, e: &Entry) -> rusqlite::Result<(bool, Vec<(Strin
                 nullable: cid != -1,
             },
         };
-        slots.push((name.unwrap_or_else(|| "(expression)".into()), s));
+        let name = name.unwrap_or_else(|| if cid == -1 { "rowid" } else { "(expression)" }.into());
+        slots.push((name, s));
     }
-    Ok((false, slots))
+    let key_len = slots.len();
+    Ok((false, slots, key_len))
 }
 
 fn entries(conn: &Connection) -> rusqlite::Result<Vec<Entry>> {
@@ -172,12 +178,14 @@ fn reference() -> &'static Reference {
         let records = entries
             .iter()
             .map(|e| {
-                let (rowid, slots) = record_slots(&c, e).expect("the reference records read back");
+                let (rowid, slots, key_len) =
+                    record_slots(&c, e).expect("the reference records read back");
                 Tree {
                     name: e.name.clone(),
                     root: 0,
                     rowid,
                     slots,
+                    key_len,
                 }
             })
             .collect();
@@ -214,6 +222,7 @@ pub fn trees(conn: &Connection) -> rusqlite::Result<Vec<Tree>> {
             ("rootpage".into(), Slot::Int { nullable: false }),
             ("sql".into(), text(true)),
         ],
+        key_len: 0,
     }];
     for e in entries(conn)? {
         if let Some(t) = reference().records.iter().find(|t| t.name == e.name) {

@@ -130,7 +130,8 @@ pub fn open_checked(path: &Path) -> std::result::Result<Connection, (Stage, Erro
         .and_then(|mut f| f.read_exact(&mut bytes))
         .map_err(|e| match e.kind() {
             std::io::ErrorKind::UnexpectedEof => header(format!(
-                "is not a readable SQLite file ({} bytes, shorter than an SQLite header); check the path",
+                "is not a readable SQLite file: {} bytes, shorter than the SQLite header, so it is \
+                 truncated or was never a table; check the path",
                 m.len()
             )),
             _ => file(format!("cannot read {p}: {e}")),
@@ -215,16 +216,19 @@ pub fn check_meta(conn: &Connection) -> std::result::Result<(), String> {
         .collect::<std::result::Result<_, _>>()?;
     let keys: Vec<&str> = got.iter().map(|(k, _)| k.as_str()).collect();
     if keys != META_KEYS {
-        let odd = keys
-            .iter()
-            .find(|k| !META_KEYS.contains(k))
-            .map(|k| format!(" (e.g. '{}')", shown_name(k)))
-            .unwrap_or_default();
-        return Err(format!(
-            "has the meta keys {} instead of {}{odd}",
-            keys.len(),
-            META_KEYS.join(", ")
-        ));
+        return Err(match keys.iter().find(|k| !META_KEYS.contains(k)) {
+            Some(k) => format!(
+                "has the meta key '{}', which this qorbits does not write (it writes {})",
+                shown_name(k),
+                META_KEYS.join(", ")
+            ),
+            None => format!(
+                "has {} meta rows where a qorbits table has {} ({})",
+                keys.len(),
+                META_KEYS.len(),
+                META_KEYS.join(", ")
+            ),
+        });
     }
     let max = crate::enumerate::bounds::MAX_HEIGHT;
     for (k, v) in &got {
