@@ -67,6 +67,10 @@ fn named(d: &str) -> Option<&'static str> {
             "meta parameters changed",
         ),
         ("file sha256 differs, but", "unused bytes (file hash only)"),
+        (
+            "the rows cannot be read",
+            "a value of the wrong type (row named)",
+        ),
     ];
     if let Some(rest) = d.strip_prefix("the file is refused: ") {
         return Some(if rest.contains("header") || rest.contains("length") {

@@ -58,6 +58,8 @@ pub fn render_content(conn: &Connection, out: &mut dyn Write) -> Result<()> {
                         line.extend_from_slice(v.to_string().as_bytes());
                         "integer"
                     }
+                    // Text must be UTF-8, the encoding of every table.
+                    ValueRef::Text(t) if std::str::from_utf8(t).is_err() => "invalid UTF-8 text",
                     ValueRef::Text(t) => {
                         line.extend_from_slice(t);
                         "text"

@@ -227,7 +227,7 @@ fn check_manifest(m: &Manifest) -> std::result::Result<(), String> {
     // SQLite's own limit on a database file is below 2^48 bytes; a table is whole pages.
     if m.file.bytes == 0 || m.file.bytes > 1 << 48 || m.file.bytes % u64::from(PAGE_SIZE) != 0 {
         return Err(format!(
-            "its file size {} bytes is impossible (a table is 1 to 2^36 pages of {PAGE_SIZE} bytes)",
+            "its file size {} bytes is impossible (a table is whole pages of {PAGE_SIZE} bytes, below 2^48 bytes)",
             m.file.bytes
         ));
     }

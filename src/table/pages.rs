@@ -162,9 +162,18 @@ fn check_record(rec: &[u8], slots: &[(String, Slot)], key_len: usize) -> Result<
     }
     let mut at = hs as usize;
     let mut key = Vec::with_capacity(key_len);
-    for &t in types.iter().take(key_len) {
+    for (k, &t) in types.iter().enumerate() {
         let len = serial_len(t).expect("checked above") as usize;
-        key.push(key_value(t, &rec[at..at + len]));
+        let value = &rec[at..at + len];
+        if serial_kind(t) == "TEXT" && std::str::from_utf8(value).is_err() {
+            return Err(format!(
+                "column {} holds text that is not UTF-8",
+                slots[k].0
+            ));
+        }
+        if k < key_len {
+            key.push(key_value(t, value));
+        }
         at += len;
     }
     Ok(key)
@@ -449,11 +458,18 @@ mod tests {
             check_record(&[2, 1, 0xfb], std::slice::from_ref(&int), 1),
             Ok(vec![Key::Int(-5)])
         );
-        let e =
-            check_record(&[2, 7, 0, 0, 0, 0, 0, 0, 0, 0], std::slice::from_ref(&int)).unwrap_err();
+        let e = check_record(
+            &[2, 7, 0, 0, 0, 0, 0, 0, 0, 0],
+            std::slice::from_ref(&int),
+            0,
+        )
+        .unwrap_err();
         assert!(e.contains("column x holds REAL"), "{e}");
-        assert!(check_record(&[2, 1], &[int])
+        let e = check_record(&[2, 1], std::slice::from_ref(&int), 0).unwrap_err();
+        assert!(e.contains("add up"), "{e}");
+        assert!(check_record(&[3, 1], &[int], 0)
             .unwrap_err()
-            .contains("add up"));
+            .contains("longer"));
+        assert!(Key::Null < Key::Int(-1) && Key::Int(7) < Key::Text(b"0".to_vec()));
     }
 }

@@ -41,8 +41,9 @@ pub(crate) fn read_error(conn: &Connection, e: rusqlite::Error) -> Error {
     match &e {
         E::InvalidColumnType(_, name, t) => {
             return edited(format!(
-                "column {name} holds a value of type {t}, which schema version {SCHEMA_VERSION} \
-                 does not allow there"
+                "column {name} holds a value of type {}, which schema version {SCHEMA_VERSION} \
+                 does not allow there",
+                t.to_string().to_uppercase()
             ))
         }
         E::IntegralValueOutOfRange(_, v) => {
@@ -52,7 +53,8 @@ pub(crate) fn read_error(conn: &Connection, e: rusqlite::Error) -> Error {
         }
         E::FromSqlConversionFailure(_, t, why) => {
             return edited(format!(
-                "a column holds a {t} value qorbits cannot read ({why})"
+                "a column holds a {} value qorbits cannot read ({why})",
+                t.to_string().to_uppercase()
             ))
         }
         _ => {}
@@ -292,7 +294,7 @@ pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
         classes,
         over_q,
     };
-    crate::table::validate::check_pair(&pair).map_err(|why| {
+    crate::table::pair_check::check_pair(&pair).map_err(|why| {
         Error::Database(format!(
             "{}: the pair ({i}, {j}) is inconsistent: {why}; the table is damaged or was edited",
             shown(conn)

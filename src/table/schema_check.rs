@@ -104,13 +104,10 @@ fn record_slots(c: &Connection, e: &Entry) -> rusqlite::Result<Records> {
         return Ok((!without_rowid, slots, key_len));
     }
     let table = table_columns(c, &e.table)?;
-    let mut st = c.prepare("SELECT cid, name FROM pragma_index_xinfo(?1) ORDER BY seqno")?;
-    let rows = st.query_map([&e.name], |r| {
-        Ok((r.get::<_, i64>(0)?, r.get::<_, Option<String>>(1)?))
-    })?;
+    let sql = "SELECT cid, name FROM pragma_index_xinfo(?1) ORDER BY seqno";
+    let cols: Vec<(i64, Option<String>)> = rows(c, sql, [&e.name], |r| Ok((r.get(0)?, r.get(1)?)))?;
     let mut slots = Vec::new();
-    for row in rows {
-        let (cid, name) = row?;
+    for (cid, name) in cols {
         let s = match usize::try_from(cid).ok().and_then(|k| table.get(k)) {
             Some(col) => slot(col),
             // -1: the rowid; -2: an expression (integer-valued in every index of the schema).
@@ -125,36 +122,46 @@ fn record_slots(c: &Connection, e: &Entry) -> rusqlite::Result<Records> {
     Ok((false, slots, key_len))
 }
 
+/// Every row of a query, mapped by `f`.
+fn rows<T, P: rusqlite::Params>(
+    conn: &Connection,
+    sql: &str,
+    params: P,
+    f: impl FnMut(&rusqlite::Row<'_>) -> rusqlite::Result<T>,
+) -> rusqlite::Result<Vec<T>> {
+    conn.prepare(sql)?.query_map(params, f)?.collect()
+}
+
 fn entries(conn: &Connection) -> rusqlite::Result<Vec<Entry>> {
-    let mut st = conn
-        .prepare("SELECT type, name, tbl_name, rootpage, sql FROM sqlite_schema ORDER BY rowid")?;
-    let rows = st.query_map([], |r| {
+    let sql = "SELECT type, name, tbl_name, rootpage, sql FROM sqlite_schema ORDER BY rowid";
+    rows(conn, sql, [], |r| {
+        let (kind, name, table) = (r.get(0)?, r.get(1)?, r.get(2)?);
+        let (root, sql) = (r.get(3)?, r.get(4)?);
         Ok(Entry {
-            kind: r.get(0)?,
-            name: r.get(1)?,
-            table: r.get(2)?,
-            root: r.get(3)?,
-            sql: r.get(4)?,
+            kind,
+            name,
+            table,
+            root,
+            sql,
         })
-    })?;
-    rows.collect()
+    })
 }
 
 fn table_columns(conn: &Connection, table: &str) -> rusqlite::Result<Vec<Column>> {
-    let mut st = conn.prepare(
-        "SELECT name, type, \"notnull\", dflt_value, pk, hidden FROM pragma_table_xinfo(?1) ORDER BY cid",
-    )?;
-    let rows = st.query_map([table], |r| {
+    let sql = "SELECT name, type, \"notnull\", dflt_value, pk, hidden FROM pragma_table_xinfo(?1) \
+               ORDER BY cid";
+    rows(conn, sql, [table], |r| {
+        let (name, decl, not_null) = (r.get(0)?, r.get(1)?, r.get(2)?);
+        let (default, pk, hidden) = (r.get(3)?, r.get(4)?, r.get(5)?);
         Ok(Column {
-            name: r.get(0)?,
-            decl: r.get(1)?,
-            not_null: r.get(2)?,
-            default: r.get(3)?,
-            pk: r.get(4)?,
-            hidden: r.get(5)?,
+            name,
+            decl,
+            not_null,
+            default,
+            pk,
+            hidden,
         })
-    })?;
-    rows.collect()
+    })
 }
 
 fn reference() -> &'static Reference {

@@ -9,8 +9,8 @@
 //! schema (`table::schema_check`) and the `meta` rows ([`check_meta`]). Rows are checked
 //! where they are read: every value against its column's declared type and domain
 //! ([`check_values`], one scan, for commands that scan a table anyway), and the classes of
-//! a pair against what their forms imply ([`check_pair`]). [`integrity`] runs SQLite's
-//! page-by-page check for `verify`.
+//! a pair against what their forms imply (`table::pair_check`). [`integrity`] runs
+//! SQLite's page-by-page check for `verify`.
 //!
 //! ```
 //! use qorbits::table::validate::{open_checked, Stage};
@@ -19,15 +19,10 @@
 //! assert!(e.to_string().contains("directory"));
 //! ```
 
-use crate::arith::primes::is_prime;
 use crate::error::{Error, Result};
-use crate::form::Form;
-use crate::table::group::label;
 use crate::table::header::{check_header, HEADER_LEN};
-use crate::table::row::Pair;
 use crate::table::schema::{LABEL_RULE, ORDERING, SCHEMA_VERSION};
 use crate::table::schema_check::{check_schema, columns, shown_name};
-use rug::Integer;
 use rusqlite::config::DbConfig;
 use rusqlite::limits::Limit;
 use rusqlite::types::ValueRef;
@@ -343,11 +338,11 @@ pub fn check_values(conn: &Connection, table: &str) -> Result<()> {
             c.decl,
             if c.not_null { " NOT NULL" } else { "" }
         ),
-        None => "a value outside its column's domain (e.g. a real_roots, stabiliser or Galois group no class has)"
+        None => "a value lies outside its column's domain (a real_roots, signature, factorisation, stabiliser, Galois group or flag no class has)"
             .to_string(),
     };
     Err(Error::Database(format!(
-        "{shown}: {table} row {} = {key} has {what}; the table is damaged or was edited, verify it against its manifest",
+        "{shown}: in {table} row {} = {key}, {what}; the table is damaged or was edited, verify it against its manifest",
         cols[0].name
     )))
 }
@@ -369,108 +364,6 @@ pub fn integrity(conn: &Connection) -> rusqlite::Result<Vec<String>> {
             .map(shown_name)
             .collect()
     })
-}
-
-/// Checks the classes of a pair read back from a table against what their forms imply:
-/// labels numbered in order, invariants, discriminant and height recomputed from the form,
-/// stabiliser orders, the factorisation of the discriminant, the places of the local data
-/// and their patterns. `Err` says what is inconsistent.
-pub fn check_pair(p: &Pair) -> std::result::Result<(), String> {
-    let disc = Integer::from(p.disc).abs();
-    let mut product = Integer::from(1);
-    for w in p.disc_factors.windows(2) {
-        if w[0].0 >= w[1].0 {
-            return Err("its discriminant's primes are out of order".into());
-        }
-    }
-    for &(q, e) in &p.disc_factors {
-        if e == 0 || e > 64 || !is_prime(&Integer::from(q)) {
-            return Err(format!(
-                "its discriminant has the factor {q}^{e}, not a prime power"
-            ));
-        }
-        product *= rug::ops::Pow::pow(Integer::from(q), e);
-    }
-    if product != disc {
-        return Err("its discriminant's factorisation has another product".into());
-    }
-    let (mut nq, mut nr) = (0, 0);
-    for (k, r) in p.classes.iter().enumerate() {
-        let n = if r.irreducible() {
-            nq += 1;
-            nq
-        } else {
-            nr += 1;
-            nr
-        };
-        let name = shown_name(&r.label);
-        if r.label != label(p.i, p.j, r.irreducible(), n) {
-            return Err(format!(
-                "class {name} does not carry the label of its place in the pair"
-            ));
-        }
-        let inv = Form::<Integer>::from_i64(r.form)
-            .invariants()
-            .expect("invariants of machine-integer forms fit in big integers");
-        if (inv.i, inv.j, inv.disc, inv.h4) != (r.i.into(), r.j.into(), r.disc.into(), r.h4.into())
-            || (r.i, r.j, r.disc, r.h4) != (p.i, p.j, p.disc, p.h4)
-        {
-            return Err(format!(
-                "class {name} stores a form whose invariants are not the pair's"
-            ));
-        }
-        if k > 0 && p.classes[k - 1].form >= r.form {
-            return Err(format!("class {name} is out of table order"));
-        }
-        if ![1, 2, 4].contains(&r.stabiliser) {
-            return Err(format!(
-                "class {name} has a stabiliser of order {}",
-                r.stabiliser
-            ));
-        }
-        check_local(r, &p.disc_factors).map_err(|why| format!("class {name} {why}"))?;
-    }
-    Ok(())
-}
-
-/// The local data of a class: the primes dividing 2·Disc in increasing order with
-/// v_p(Disc), then the real place with the signature; patterns of digits, `^` and spaces.
-fn check_local(
-    r: &crate::table::row::ClassRow,
-    disc_factors: &[(i64, u32)],
-) -> std::result::Result<(), String> {
-    use crate::form::local::Place;
-    if r.local.is_empty() {
-        return Ok(());
-    }
-    let mut want: Vec<(i64, u32)> = disc_factors.to_vec();
-    if want.first().map(|f| f.0) != Some(2) {
-        want.insert(0, (2, 0));
-    }
-    let (real, primes) = r.local.split_last().expect("not empty");
-    let got: Vec<(i64, u32)> = primes
-        .iter()
-        .map(|l| match (&l.place, l.v_disc) {
-            (Place::Prime(q), Some(v)) => (*q, v),
-            _ => (0, u32::MAX),
-        })
-        .collect();
-    if got != want || real.place != Place::Real || real.v_disc.is_some() {
-        return Err("has local data at places other than those of its discriminant".into());
-    }
-    if real.pattern != r.signature.name() {
-        return Err("has local data at the real place that contradicts its signature".into());
-    }
-    let pattern_ok = |s: &str| {
-        !s.is_empty()
-            && s.len() <= 64
-            && s.bytes()
-                .all(|b| b.is_ascii_digit() || b == b'^' || b == b' ')
-    };
-    if !primes.iter().all(|l| pattern_ok(&l.pattern)) {
-        return Err("has a factorisation pattern mod p that no form has".into());
-    }
-    Ok(())
 }
 
 #[cfg(test)]

@@ -103,6 +103,9 @@ pub fn verify(db: &Path, m: &Manifest) -> Result<Vec<Check>> {
         (false, Ok(h)) => check("file sha256", &m.file.sha256, h),
         (false, Err(e)) => outcome("file sha256", false, e.to_string()),
     });
+    if let Some(c) = side_files(db) {
+        out.push(c);
+    }
     if m.format != FORMAT {
         out.push(outcome(
             "manifest format",
@@ -207,6 +210,34 @@ fn walk(db: &Path, conn: &rusqlite::Connection) -> Option<String> {
     locate_damage(h.pages, &mut read, &trees, h.freelist.1 == 0)
 }
 
+/// A failed check when a rollback journal or a write-ahead log lies beside the table:
+/// qorbits never writes one and never reads one (its connections are immutable), but the
+/// sqlite3 shell of the content recipe would apply it and read other rows.
+fn side_files(db: &Path) -> Option<Check> {
+    let found: Vec<String> = ["-journal", "-wal"]
+        .iter()
+        .map(|s| {
+            let mut p = db.as_os_str().to_owned();
+            p.push(s);
+            std::path::PathBuf::from(p)
+        })
+        .filter(|p| std::fs::symlink_metadata(p).is_ok())
+        .map(|p| p.display().to_string())
+        .collect();
+    (!found.is_empty()).then(|| {
+        outcome(
+            "side files",
+            false,
+            format!(
+                "{} lies beside the table: a rollback journal or log qorbits never writes, which \
+                 the sqlite3 shell of the content recipe would apply and so read other rows; \
+                 remove it",
+                found.join(" and ")
+            ),
+        )
+    })
+}
+
 /// The schema version in the file's header (`PRAGMA user_version`), read from the bytes.
 fn header_version(db: &Path) -> Option<u32> {
     let mut b = [0u8; HEADER_LEN];
@@ -252,6 +283,9 @@ pub fn diagnosis(checks: &[Check]) -> Option<String> {
     }
     if let Some(c) = get("table") {
         return Some(format!("the file is refused: {}", c.detail));
+    }
+    if let Some(c) = get("side files") {
+        return Some(c.detail.clone());
     }
     if let Some(c) = get("integrity").filter(|c| !c.detail.starts_with("not run")) {
         return Some(c.detail.clone());
