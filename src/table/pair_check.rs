@@ -14,12 +14,13 @@
 //! assert!(check_pair(&q).unwrap_err().contains("not a prime power"));
 //! ```
 
-use crate::arith::primes::is_prime;
+use crate::arith::primes::{factor_text, is_prime};
 use crate::form::Form;
 use crate::table::group::label;
 use crate::table::row::Pair;
 use crate::table::schema_check::shown_name;
 use rug::Integer;
+use rusqlite::{Connection, OptionalExtension};
 
 /// Checks the classes of a pair read back from a table against what their forms imply:
 /// labels numbered in order, invariants, discriminant and height recomputed from the form,
@@ -119,6 +120,48 @@ fn check_local(
     };
     if !primes.iter().all(|l| pattern_ok(&l.pattern)) {
         return Err("has a factorisation pattern mod p that no form has".into());
+    }
+    Ok(())
+}
+
+/// The row of `pairs` for a pair read back: its counts, discriminant, height and
+/// factorisation must be those of the classes read (a pair row with no class, or counts
+/// that disagree, would make a command report too few or too many classes).
+pub fn check_pair_row(conn: &Connection, p: &Pair) -> std::result::Result<(), String> {
+    type Row = (i64, i64, i64, i64, i64, i64, String, Option<i64>);
+    let sql = "SELECT classes, irreducible, els, rational_els, disc, h4, disc_factors, reducible \
+               FROM pairs WHERE I = ?1 AND J = ?2";
+    let row: Option<Row> = conn
+        .query_row(sql, [p.i, p.j], |r| {
+            Ok((
+                r.get(0)?,
+                r.get(1)?,
+                r.get(2)?,
+                r.get(3)?,
+                r.get(4)?,
+                r.get(5)?,
+                r.get(6)?,
+                r.get(7)?,
+            ))
+        })
+        .optional()
+        .map_err(|e| format!("its row of pairs cannot be read ({e})"))?;
+    let Some((classes, irreducible, els, over_q, disc, h4, factors, reducible)) = row else {
+        return Ok(());
+    };
+    let n = p.classes.len() as i64;
+    let irr = p.irreducible() as i64;
+    let counts = (classes, irreducible, els, over_q, disc, h4);
+    let want = (n, irr, p.els() as i64, p.over_q.len() as i64, p.disc, p.h4);
+    if n == 0 || counts != want || reducible.is_some_and(|r| r != n - irr) {
+        return Err(format!(
+            "its row of pairs counts {classes}/{irreducible}/{els}/{over_q} classes/irreducible/\
+             everywhere locally soluble/over Q, the classes read give {n}/{irr}/{}/{}",
+            want.2, want.3
+        ));
+    }
+    if factors != factor_text(&p.disc_factors) {
+        return Err("its row of pairs records another factorisation of the discriminant".into());
     }
     Ok(())
 }

@@ -294,11 +294,13 @@ pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
         classes,
         over_q,
     };
-    crate::table::pair_check::check_pair(&pair).map_err(|why| {
-        Error::Database(format!(
+    crate::table::pair_check::check_pair(&pair)
+        .and_then(|()| crate::table::pair_check::check_pair_row(conn, &pair))
+        .map_err(|why| {
+            Error::Database(format!(
             "{}: the pair ({i}, {j}) is inconsistent: {why}; the table is damaged or was edited",
             shown(conn)
         ))
-    })?;
+        })?;
     Ok(pair)
 }

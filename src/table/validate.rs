@@ -183,7 +183,7 @@ const META_KEYS: [&str; 6] = [
     "schema_version",
 ];
 
-/// Checks the `meta` rows: exactly [`META_KEYS`], text, with values this build writes (a
+/// Checks the `meta` rows: exactly the keys of `META_KEYS`, text, with values this build writes (a
 /// height a table can have, `0`/`1`, the label rule, the ordering, the schema version and a
 /// version number for the builder).
 pub fn check_meta(conn: &Connection) -> std::result::Result<(), String> {
