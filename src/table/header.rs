@@ -13,7 +13,7 @@
 //! h[..16].copy_from_slice(b"SQLite format 3\0");
 //! assert!(Header::parse(&h).is_some());
 //! let e = check_header(&h, 4096).unwrap_err();
-//! assert!(e.contains("application id"), "{e}");
+//! assert!(e.contains("application_id"), "{e}");
 //! ```
 
 use crate::table::schema::{APPLICATION_ID, PAGE_SIZE, SCHEMA_VERSION};
