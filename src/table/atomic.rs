@@ -29,44 +29,8 @@ impl TempFile {
     /// Checks that `target` may be written (refusing an existing file unless `replace`) and
     /// creates an empty `.<name>.tmp-<pid>` in the same directory.
     pub fn create(target: &Path, replace: bool) -> Result<TempFile> {
+        let (dir, name) = check_target(target, replace)?;
         let shown = target.display();
-        let name = target.file_name().ok_or_else(|| {
-            Error::Input(format!(
-                "{shown} is not a file name; give a path like dir/table.sqlite"
-            ))
-        })?;
-        if let Ok(m) = std::fs::symlink_metadata(target) {
-            if m.is_dir() {
-                return Err(Error::Io(format!(
-                    "{shown} is a directory; give a file name inside it"
-                )));
-            }
-            if m.file_type().is_symlink() {
-                return Err(Error::Io(format!(
-                    "{shown} is a symbolic link; qorbits replaces only regular files, so give \
-                     the path of the file itself or remove the link"
-                )));
-            }
-            if !m.is_file() {
-                return Err(Error::Io(format!(
-                    "{shown} is not a regular file (a device, socket or pipe); qorbits \
-                     replaces only regular files"
-                )));
-            }
-            if !replace {
-                return Err(Error::Exists(target.to_path_buf()));
-            }
-        }
-        let dir = match target.parent() {
-            Some(d) if !d.as_os_str().is_empty() => d,
-            _ => Path::new("."),
-        };
-        if !dir.is_dir() {
-            return Err(Error::Io(format!(
-                "cannot write {shown}: directory {} does not exist; create it first",
-                dir.display()
-            )));
-        }
         let mut tmp_name = std::ffi::OsString::from(".");
         tmp_name.push(name);
         tmp_name.push(format!(".tmp-{}", std::process::id()));
@@ -139,6 +103,52 @@ impl Drop for TempFile {
             let _ = std::fs::remove_file(&self.tmp);
         }
     }
+}
+
+/// Whether `target` may be written: it has a file name, is not a directory, a symbolic
+/// link or another non-regular file, exists only if `replace`, and its directory exists.
+/// Returns the directory and the file name. Every writer calls it before it writes, and a
+/// command that writes several files calls it for each before any work.
+pub fn check_target(target: &Path, replace: bool) -> Result<(PathBuf, std::ffi::OsString)> {
+    let shown = target.display();
+    let name = target.file_name().ok_or_else(|| {
+        Error::Input(format!(
+            "{shown} is not a file name; give a path like dir/table.sqlite"
+        ))
+    })?;
+    if let Ok(m) = std::fs::symlink_metadata(target) {
+        if m.is_dir() {
+            return Err(Error::Io(format!(
+                "{shown} is a directory; give a file name inside it"
+            )));
+        }
+        if m.file_type().is_symlink() {
+            return Err(Error::Io(format!(
+                "{shown} is a symbolic link; qorbits replaces only regular files, so give \
+                 the path of the file itself or remove the link"
+            )));
+        }
+        if !m.is_file() {
+            return Err(Error::Io(format!(
+                "{shown} is not a regular file (a device, socket or pipe); qorbits \
+                 replaces only regular files"
+            )));
+        }
+        if !replace {
+            return Err(Error::Exists(target.to_path_buf()));
+        }
+    }
+    let dir = match target.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d,
+        _ => Path::new("."),
+    };
+    if !dir.is_dir() {
+        return Err(Error::Io(format!(
+            "cannot write {shown}: directory {} does not exist; create it first",
+            dir.display()
+        )));
+    }
+    Ok((dir.to_path_buf(), name.to_os_string()))
 }
 
 /// Writes `bytes` to `target` atomically (temporary file, fsync, rename).

@@ -221,9 +221,9 @@ pub fn build_table(
 ) -> Result<BuildSummary> {
     let manifest_path = default_manifest_path(out);
     for target in [out, manifest_path.as_path()] {
-        if !opts.replace && std::fs::symlink_metadata(target).is_ok() {
-            return Err(Error::Exists(target.to_path_buf()));
-        }
+        // Neither output may be a directory, a link or (unless replacing) a file:
+        // checked before any work, so a build never stops with its manifest refused.
+        crate::table::atomic::check_target(target, opts.replace)?;
     }
     let name = out.file_name().ok_or_else(|| {
         Error::Input(format!(

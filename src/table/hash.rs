@@ -10,6 +10,7 @@
 use crate::error::{Error, Result};
 use crate::table::reader::{read_error, shown};
 use crate::table::schema::{CONTENT_SQL, SCHEMA_VERSION};
+use crate::table::schema_check::columns;
 use rusqlite::types::ValueRef;
 use rusqlite::Connection;
 use sha2::{Digest, Sha256};
@@ -32,27 +33,57 @@ pub fn render_content(conn: &Connection, out: &mut dyn Write) -> Result<()> {
     let io = |e: std::io::Error| Error::Io(format!("cannot write the content rendering: {e}"));
     let mut line = Vec::new();
     for sql in content_statements() {
+        // Each statement is `SELECT * FROM <table> ...`: its columns are the table's.
+        let table = sql
+            .split_whitespace()
+            .skip_while(|w| *w != "FROM")
+            .nth(1)
+            .expect("a table in every content statement");
+        let cols = columns(table).expect("content statements name schema tables");
         let mut st = conn.prepare(sql).map_err(|e| read_error(conn, e))?;
         let n = st.column_count();
         let mut rows = st.query([]).map_err(|e| read_error(conn, e))?;
+        let mut row = 0u64;
         while let Some(r) = rows.next().map_err(|e| read_error(conn, e))? {
+            row += 1;
             line.clear();
             for k in 0..n {
                 if k > 0 {
                     line.push(b'|');
                 }
-                match r.get_ref(k).map_err(|e| read_error(conn, e))? {
-                    ValueRef::Null => {}
-                    ValueRef::Integer(v) => line.extend_from_slice(v.to_string().as_bytes()),
-                    ValueRef::Text(t) => line.extend_from_slice(t),
-                    ValueRef::Real(_) | ValueRef::Blob(_) => {
-                        return Err(Error::Database(format!(
-                            "{} holds a REAL or BLOB value (\"{sql}\", column {}), which schema version {SCHEMA_VERSION} \
-                             does not allow; the table is damaged",
-                            shown(conn),
-                            k + 1
-                        )));
+                let v = r.get_ref(k).map_err(|e| read_error(conn, e))?;
+                let kind = match v {
+                    ValueRef::Null => "null",
+                    ValueRef::Integer(v) => {
+                        line.extend_from_slice(v.to_string().as_bytes());
+                        "integer"
                     }
+                    // Text must be UTF-8, the encoding of every table.
+                    ValueRef::Text(t) if std::str::from_utf8(t).is_err() => "invalid UTF-8 text",
+                    ValueRef::Text(t) => {
+                        line.extend_from_slice(t);
+                        "text"
+                    }
+                    ValueRef::Real(_) => "real",
+                    ValueRef::Blob(_) => "blob",
+                };
+                // Only the types the schema declares: the rendering is then the same on
+                // every platform, and a value of another type is damage, not content.
+                let col = cols.get(k);
+                if col.is_none_or(|c| !c.admits(kind)) {
+                    let (name, decl) = col.map_or(("?", "no column"), |c| (&*c.name, &*c.decl));
+                    let not_null = if col.is_some_and(|c| c.not_null) {
+                        " NOT NULL"
+                    } else {
+                        ""
+                    };
+                    return Err(Error::Database(format!(
+                        "{}: {table}.{name} holds {} in row {row} of \"{sql}\" where schema version \
+                         {SCHEMA_VERSION} has {decl}{not_null}; the table is damaged or was edited, \
+                         verify it against its manifest",
+                        shown(conn),
+                        kind.to_ascii_uppercase(),
+                    )));
                 }
             }
             line.push(b'\n');

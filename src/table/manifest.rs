@@ -1,5 +1,5 @@
-//! Manifests (JSON) of built tables, and verification of a table against its manifest
-//! (DESIGN §5).
+//! Manifests (JSON) of built tables, and the rebuild from a manifest (DESIGN §5);
+//! verification of a table against its manifest is `table::verify`.
 //!
 //! A manifest records the parameters, the versions (builder, schema, SQLite), row counts
 //! by signature and by Galois group, the file's SHA-256 and the content SHA-256 — the hash
@@ -21,9 +21,10 @@ use crate::form::Signature;
 use crate::progress::Progress;
 use crate::table::atomic::{fresh_temp_dir, write_atomic};
 use crate::table::hash::{content_sha256, file_sha256};
-use crate::table::reader::{open_table, table_params};
+use crate::table::reader::{open_table, read_error, table_params};
 use crate::table::row::Params;
-use crate::table::schema::{CONTENT_SQL, SCHEMA_VERSION};
+use crate::table::schema::{CONTENT_SQL, PAGE_SIZE, SCHEMA_VERSION};
+pub use crate::table::verify::{diagnosis, verify, Check};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -107,14 +108,19 @@ pub fn content_recipe(file_name: &str) -> String {
     )
 }
 
-fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
-    let one =
-        |sql: &str| -> Result<u64> { Ok(conn.query_row(sql, [], |r| r.get::<_, i64>(0))? as u64) };
+/// The row counts of a table, by SQL.
+pub(crate) fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
+    let err = |e| read_error(conn, e);
+    let one = |sql: &str| -> Result<u64> {
+        Ok(conn
+            .query_row(sql, [], |r| r.get::<_, i64>(0))
+            .map_err(err)? as u64)
+    };
     let count_by = |column: &str, names: &[&str]| -> Result<BTreeMap<String, u64>> {
         let sql = format!("SELECT count(*) FROM classes WHERE {column} = ?1");
         let mut out = BTreeMap::new();
         for name in names {
-            let n: i64 = conn.query_row(&sql, [name], |r| r.get(0))?;
+            let n: i64 = conn.query_row(&sql, [name], |r| r.get(0)).map_err(err)?;
             out.insert(name.to_string(), n as u64);
         }
         Ok(out)
@@ -225,10 +231,10 @@ fn check_manifest(m: &Manifest) -> std::result::Result<(), String> {
             crate::enumerate::bounds::MAX_HEIGHT
         ));
     }
-    // SQLite's own limit on a database file is below 2^48 bytes.
-    if m.file.bytes == 0 || m.file.bytes > 1 << 48 {
+    // SQLite's own limit on a database file is below 2^48 bytes; a table is whole pages.
+    if m.file.bytes == 0 || m.file.bytes > 1 << 48 || m.file.bytes % u64::from(PAGE_SIZE) != 0 {
         return Err(format!(
-            "its file size {} bytes is impossible",
+            "its file size {} bytes is impossible (a table is whole pages of {PAGE_SIZE} bytes, below 2^48 bytes)",
             m.file.bytes
         ));
     }
@@ -249,126 +255,6 @@ pub fn read_manifest(path: &Path) -> Result<Manifest> {
         ))
     })?;
     Ok(m)
-}
-
-/// One verification check.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub struct Check {
-    /// What is checked.
-    pub name: String,
-    /// Whether it matched.
-    pub ok: bool,
-    /// Expected and found values, or why it could not be checked.
-    pub detail: String,
-}
-
-fn check(name: &str, want: impl std::fmt::Display, got: impl std::fmt::Display) -> Check {
-    let (w, g) = (want.to_string(), got.to_string());
-    Check {
-        name: name.into(),
-        ok: w == g,
-        detail: if w == g {
-            w
-        } else {
-            format!("manifest {w}, file {g}")
-        },
-    }
-}
-
-/// Check a table against a manifest: file hash, schema version (read from the file),
-/// content hash and counts. A file that is damaged or not a table yields failed checks; a
-/// missing file is an error.
-pub fn verify(db: &Path, m: &Manifest) -> Result<Vec<Check>> {
-    if std::fs::symlink_metadata(db).is_err() {
-        return Err(Error::Io(format!(
-            "no table at {}: the file does not exist; check the path",
-            db.display()
-        )));
-    }
-    let failed = |name: &str, detail: String| Check {
-        name: name.into(),
-        ok: false,
-        detail,
-    };
-    let mut out = Vec::new();
-    match file_sha256(db) {
-        Ok(h) => out.push(check("file sha256", &m.file.sha256, h)),
-        Err(e) => {
-            out.push(failed("file sha256", e.to_string()));
-            return Ok(out);
-        }
-    }
-    if m.format != FORMAT {
-        out.push(failed(
-            "manifest format",
-            format!("unknown format {}", m.format),
-        ));
-    }
-    match file_schema_version(db) {
-        Ok(v) => out.push(check("schema version", m.versions.schema, v)),
-        Err(e) => out.push(failed("schema version", e.to_string())),
-    }
-    match manifest_for(db) {
-        Ok(got) => {
-            out.push(check(
-                "content sha256",
-                &m.content_sha256,
-                &got.content_sha256,
-            ));
-            out.push(check("height", m.parameters.height, got.parameters.height));
-            out.push(check(
-                "include_reducible",
-                m.parameters.include_reducible,
-                got.parameters.include_reducible,
-            ));
-            out.push(check("classes", m.counts.classes, got.counts.classes));
-            out.push(check("pairs", m.counts.pairs, got.counts.pairs));
-            out.push(check("els classes", m.counts.els, got.counts.els));
-            out.push(check(
-                "els classes over Q",
-                m.counts.rational_els,
-                got.counts.rational_els,
-            ));
-            for (k, v) in &m.counts.by_signature {
-                out.push(check(
-                    &format!("signature {k}"),
-                    v,
-                    got.counts.by_signature.get(k).copied().unwrap_or(0),
-                ));
-            }
-            for (k, v) in &m.counts.by_galois {
-                out.push(check(
-                    &format!("galois {k}"),
-                    v,
-                    got.counts.by_galois.get(k).copied().unwrap_or(0),
-                ));
-            }
-        }
-        Err(e) => out.push(failed("table", e.to_string())),
-    }
-    Ok(out)
-}
-
-/// The schema version a file declares (`PRAGMA user_version`), if it is a qorbits table of
-/// any version.
-fn file_schema_version(db: &Path) -> Result<i64> {
-    let shown = db.display();
-    let not_sqlite = |e: rusqlite::Error| {
-        Error::Database(format!("{shown} is not a readable SQLite file ({e})"))
-    };
-    let conn = rusqlite::Connection::open_with_flags(
-        db,
-        rusqlite::OpenFlags::SQLITE_OPEN_READ_ONLY | rusqlite::OpenFlags::SQLITE_OPEN_NO_MUTEX,
-    )
-    .map_err(not_sqlite)?;
-    let app: i32 = conn
-        .query_row("PRAGMA application_id", [], |r| r.get(0))
-        .map_err(not_sqlite)?;
-    if app != crate::table::schema::APPLICATION_ID {
-        return Err(Error::Database(format!("{shown} is not a qorbits table")));
-    }
-    conn.query_row("PRAGMA user_version", [], |r| r.get(0))
-        .map_err(not_sqlite)
 }
 
 /// Rebuilds the table a manifest describes and checks the result against it, on the

@@ -1,9 +1,13 @@
 //! Stage 4, the table: row types ([`row`]), the classification of candidates
 //! ([`classify`]), the grouping into labelled pairs ([`group`]), the pipeline and the build
 //! ([`pipeline`]), the storage contract ([`schema`]), the writer ([`writer`]) with its
-//! atomic files ([`atomic`]), the reader ([`reader`]), the hashes ([`hash`]), manifests and
-//! verification ([`manifest`]), the JSON number rule ([`json`]), queries by invariants ([`query`]), lookups of
-//! any form ([`lookup`]) and counts against the asymptotic main terms ([`stats`]).
+//! atomic files ([`atomic`]), the reader ([`reader`]) and what it checks of a file before
+//! reading it ([`validate`], [`header`], [`schema_check`], [`pair_check`]), the hashes
+//! ([`hash`]), manifests ([`manifest`]), verification ([`verify`], [`pages`]), the JSON
+//! number rule ([`json`]), queries by invariants ([`query`]), selections ([`select`]),
+//! lookups of any form ([`lookup`]), exports ([`export`]), counts against the asymptotic
+//! main terms ([`stats`]), and the scalable build: plan ([`plan`]), sorted runs ([`runs`]),
+//! their merge ([`merge`]), the build itself ([`build`]) and shards ([`shard`]).
 
 pub mod atomic;
 pub mod build;
@@ -11,10 +15,13 @@ pub mod classify;
 pub mod export;
 pub mod group;
 pub mod hash;
+pub mod header;
 pub mod json;
 pub mod lookup;
 pub mod manifest;
 pub mod merge;
+pub mod pages;
+pub mod pair_check;
 pub mod pipeline;
 pub mod plan;
 pub mod query;
@@ -22,7 +29,10 @@ pub mod reader;
 pub mod row;
 pub mod runs;
 pub mod schema;
+pub mod schema_check;
 pub mod select;
 pub mod shard;
 pub mod stats;
+pub mod validate;
+pub mod verify;
 pub mod writer;

@@ -14,11 +14,10 @@ use crate::form::invariants_from_ij;
 use crate::form::local::LocalPlace;
 use crate::table::row::{ClassRow, Pair, Params};
 use crate::table::schema::{
-    galois_from_name, pattern_from_name, place_from_column, signature_from_name, APPLICATION_ID,
-    SCHEMA_VERSION,
+    galois_from_name, pattern_from_name, place_from_column, signature_from_name, SCHEMA_VERSION,
 };
 use rug::Integer;
-use rusqlite::{Connection, ErrorCode, OpenFlags, OptionalExtension};
+use rusqlite::{Connection, ErrorCode, OptionalExtension};
 use std::path::Path;
 
 /// How a connection's file is named in messages.
@@ -29,8 +28,37 @@ pub(crate) fn shown(conn: &Connection) -> String {
     }
 }
 
-/// A one-line error for a failed query on a table.
+/// A one-line error for a failed query on a table: damage, and values of a type or size
+/// the schema does not allow, are named as such.
 pub(crate) fn read_error(conn: &Connection, e: rusqlite::Error) -> Error {
+    use rusqlite::Error as E;
+    let edited = |what: String| {
+        Error::Database(format!(
+            "{}: {what}; the table is damaged or was edited, verify it against its manifest",
+            shown(conn)
+        ))
+    };
+    match &e {
+        E::InvalidColumnType(_, name, t) => {
+            return edited(format!(
+                "column {name} holds a value of type {}, which schema version {SCHEMA_VERSION} \
+                 does not allow there",
+                t.to_string().to_uppercase()
+            ))
+        }
+        E::IntegralValueOutOfRange(_, v) => {
+            return edited(format!(
+                "a column holds {v}, outside the range of its values"
+            ))
+        }
+        E::FromSqlConversionFailure(_, t, why) => {
+            return edited(format!(
+                "a column holds a {} value qorbits cannot read ({why})",
+                t.to_string().to_uppercase()
+            ))
+        }
+        _ => {}
+    }
     match e.sqlite_error_code() {
         Some(ErrorCode::DatabaseCorrupt) | Some(ErrorCode::NotADatabase) => {
             Error::Database(format!(
@@ -38,63 +66,20 @@ pub(crate) fn read_error(conn: &Connection, e: rusqlite::Error) -> Error {
                 shown(conn)
             ))
         }
+        Some(ErrorCode::TooBig) => edited(format!(
+            "a value is longer than {} bytes, which no qorbits table holds",
+            crate::table::validate::MAX_VALUE_BYTES
+        )),
         _ => Error::Database(format!("cannot read {}: {e}", shown(conn))),
     }
 }
 
-/// Opens a qorbits table read-only, checking that it is an SQLite file written by qorbits
-/// with a schema version this build reads.
+/// Opens a qorbits table read-only, as untrusted input: the file, its header, a hardened
+/// connection (no journal or log read, `trusted_schema` and triggers off, `query_only`),
+/// its schema against schema version 4 and its `meta` rows are checked before anything
+/// reads it ([`crate::table::validate::open_checked`]); a refusal is one line.
 pub fn open_table(path: &Path) -> Result<Connection> {
-    let p = path.display();
-    match std::fs::metadata(path) {
-        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
-            return Err(Error::Io(format!(
-                "no table at {p}: the file does not exist; check the path or build the table first"
-            )));
-        }
-        Err(e) => return Err(Error::Io(format!("cannot read {p}: {e}"))),
-        Ok(m) if m.is_dir() => {
-            return Err(Error::Io(format!("{p} is a directory, not a table file")))
-        }
-        Ok(m) if m.len() == 0 => {
-            return Err(Error::Database(format!(
-                "{p} is empty (0 bytes), not a qorbits table; rebuild it"
-            )));
-        }
-        Ok(_) => {}
-    }
-    let unreadable = |e: rusqlite::Error| {
-        Error::Database(format!(
-            "{p} is not a readable SQLite file ({e}); check the path"
-        ))
-    };
-    let conn = Connection::open_with_flags(
-        path,
-        OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
-    )
-    .map_err(unreadable)?;
-    let app: i32 = conn
-        .query_row("PRAGMA application_id", [], |r| r.get(0))
-        .map_err(unreadable)?;
-    if app != APPLICATION_ID {
-        return Err(Error::Database(format!(
-            "{p} is an SQLite database but not a qorbits table (application_id {app:#010x}, expected \
-             {APPLICATION_ID:#010x}); check the path"
-        )));
-    }
-    let version: i64 = conn
-        .query_row("PRAGMA user_version", [], |r| r.get(0))
-        .map_err(unreadable)?;
-    if version != i64::from(SCHEMA_VERSION) {
-        return Err(Error::Database(format!(
-            "{p} is a qorbits table with schema version {version}, but this qorbits reads version \
-             {SCHEMA_VERSION}; use a matching qorbits release or rebuild the table"
-        )));
-    }
-    // Extra consistency checks on every page read, so damage shows as an error early.
-    conn.pragma_update(None, "cell_size_check", true)
-        .map_err(unreadable)?;
-    Ok(conn)
+    crate::table::validate::open_checked(path).map_err(|(_, e)| e)
 }
 
 /// The classes of the pair (I, J) = (?1, ?2): found through the index of `pairs`, read as a
@@ -283,7 +268,7 @@ pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
             |r| Ok((r.get(0)?, r.get(1)?)),
         )?
     };
-    Ok(Pair {
+    let pair = Pair {
         i,
         j,
         disc,
@@ -291,7 +276,16 @@ pub fn pair_from_table(conn: &Connection, i: i64, j: i64) -> Result<Pair> {
         disc_factors,
         classes,
         over_q,
-    })
+    };
+    crate::table::pair_check::check_pair(&pair)
+        .and_then(|()| crate::table::pair_check::check_pair_row(conn, &pair))
+        .map_err(|why| {
+            Error::Database(format!(
+            "{}: the pair ({i}, {j}) is inconsistent: {why}; the table is damaged or was edited",
+            shown(conn)
+        ))
+        })?;
+    Ok(pair)
 }
 
 /// The columns of `classes` read by [`class_rows`] and [`for_each_class`], qualified by the

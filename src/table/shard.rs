@@ -187,9 +187,9 @@ pub fn merge_shards(
 ) -> Result<BuildSummary> {
     let manifest_path = default_manifest_path(out);
     for target in [out, manifest_path.as_path()] {
-        if !replace && std::fs::symlink_metadata(target).is_ok() {
-            return Err(Error::Exists(target.to_path_buf()));
-        }
+        // Neither output may be a directory, a link or (unless replacing) a file:
+        // checked before any work, so a build never stops with its manifest refused.
+        crate::table::atomic::check_target(target, replace)?;
     }
     let shards = dirs
         .iter()

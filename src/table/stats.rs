@@ -22,9 +22,12 @@ pub fn main_term(real: u8, x: f64) -> f64 {
     k / 135.0 * zeta2 * x.powf(5.0 / 6.0)
 }
 
-/// Counts of irreducible classes by real roots, with the ratio to the main terms.
+/// Counts of irreducible classes by real roots, with the ratio to the main terms. The
+/// values of `classes` are checked first (types and domains, one scan), so a count never
+/// silently skips a row that holds something else.
 pub fn stats_counts(conn: &Connection) -> Result<[(u8, u64, f64); 3]> {
     let params = crate::table::reader::table_params(conn)?;
+    crate::table::validate::check_values(conn, "classes")?;
     let x = params.height as f64;
     let mut out = [(4u8, 0u64, 0.0f64), (2, 0, 0.0), (0, 0, 0.0)];
     for slot in out.iter_mut() {

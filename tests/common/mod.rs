@@ -3,6 +3,7 @@
 #![allow(dead_code)]
 
 pub mod fixture;
+pub mod hostile;
 pub mod mutate;
 pub mod tier;
 

@@ -6,7 +6,9 @@ use crate::out::emit;
 use crate::progress::Bar;
 use qorbits::error::Error;
 use qorbits::table::json;
-use qorbits::table::manifest::{default_manifest_path, read_manifest, rebuild_and_compare, verify};
+use qorbits::table::manifest::{
+    default_manifest_path, diagnosis, read_manifest, rebuild_and_compare, verify,
+};
 use serde_json::Value;
 use std::fmt::Write;
 use std::path::PathBuf;
@@ -62,6 +64,7 @@ pub fn run(a: Args) -> Result<ExitCode, Error> {
         (None, None) => unreachable!("clap requires --db or --rebuild"),
     };
     let failed = checks.iter().filter(|c| !c.ok).count();
+    let what = diagnosis(&checks);
     if a.json {
         let v = json::object(vec![
             ("ok", Value::from(failed == 0)),
@@ -73,6 +76,7 @@ pub fn run(a: Args) -> Result<ExitCode, Error> {
             ("rebuilt", Value::from(a.rebuild.is_some())),
             ("passed", Value::from(checks.len() - failed)),
             ("failed", Value::from(failed)),
+            ("diagnosis", what.clone().into()),
             (
                 "checks",
                 Value::Array(
@@ -101,8 +105,9 @@ pub fn run(a: Args) -> Result<ExitCode, Error> {
         } else {
             writeln!(
                 out,
-                "verification FAILED: {failed} of {} checks",
-                checks.len()
+                "verification FAILED: {failed} of {} checks: {}",
+                checks.len(),
+                what.unwrap_or_default()
             )
             .expect("string");
         }
