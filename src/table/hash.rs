@@ -10,7 +10,6 @@
 use crate::error::{Error, Result};
 use crate::table::format::{Format, TABLE};
 use crate::table::reader::{read_error, shown};
-
 use crate::table::schema_check::columns_in;
 use rusqlite::types::ValueRef;
 use rusqlite::Connection;

@@ -74,6 +74,7 @@ fn is_count(name: &str) -> bool {
         || name.starts_with("signature ")
         || name.starts_with("galois ")
         || name.starts_with("selmer rank ")
+        || name == "two-torsion ranks"
 }
 
 /// The names of the checks of row counts (tables' and the curve dataset's).
@@ -329,7 +330,7 @@ pub fn diagnosis(checks: &[Check]) -> Option<String> {
         return Some(format!("the rows cannot be read: {}", c.detail));
     }
     let said = |c: &Check| format!("{}: {}", c.name, c.detail);
-    let params: Vec<&Check> = ["height", "include_reducible"]
+    let params: Vec<&Check> = ["height", "include_reducible", "family"]
         .into_iter()
         .filter_map(get)
         .collect();
