@@ -32,7 +32,8 @@ mod group;
 
 pub use curve::Curve;
 pub use family::{
-    cheaper_route, estimated_seconds, family_selmer, family_statement, selmer_stats, selmer_stats_by, short_family, stats_from_groups, short_height,
-    FamilyRoute, SelmerBin, SelmerStats,
+    cheaper_route, estimated_seconds, family_selmer, family_statement, selmer_stats,
+    selmer_stats_by, short_family, short_height, stats_from_groups, FamilyRoute, SelmerBin,
+    SelmerStats,
 };
 pub use group::{selmer_of_pair, two_selmer, Selmer};

@@ -20,9 +20,7 @@ use std::path::Path;
 
 /// The statements of a content SQL, in order.
 fn content_statements(sql: &'static str) -> impl Iterator<Item = &'static str> {
-    sql.split(';')
-        .map(str::trim)
-        .filter(|s| !s.is_empty())
+    sql.split(';').map(str::trim).filter(|s| !s.is_empty())
 }
 
 /// Writes the rendering of [`CONTENT_SQL`](crate::table::schema::CONTENT_SQL) that [`content_sha256`] hashes: what the
@@ -34,11 +32,7 @@ pub fn render_content(conn: &Connection, out: &mut dyn Write) -> Result<()> {
 
 /// [`render_content`] of a file of format `f`: its [`Format::content_sql`], each value
 /// checked against the column types of its schema.
-pub fn render_content_in(
-    f: &'static Format,
-    conn: &Connection,
-    out: &mut dyn Write,
-) -> Result<()> {
+pub fn render_content_in(f: &'static Format, conn: &Connection, out: &mut dyn Write) -> Result<()> {
     let io = |e: std::io::Error| Error::Io(format!("cannot write the content rendering: {e}"));
     let mut line = Vec::new();
     for sql in content_statements(f.content_sql) {

@@ -98,11 +98,7 @@ pub fn check_header(b: &[u8; HEADER_LEN], file_len: u64) -> Result<Header, Strin
 }
 
 /// [`check_header`] for a file of format `f`: its application id and schema version.
-pub fn check_header_for(
-    f: &Format,
-    b: &[u8; HEADER_LEN],
-    file_len: u64,
-) -> Result<Header, String> {
+pub fn check_header_for(f: &Format, b: &[u8; HEADER_LEN], file_len: u64) -> Result<Header, String> {
     let h = Header::parse(b).ok_or_else(|| {
         "does not start with the SQLite header, so it is not an SQLite file".to_string()
     })?;

@@ -283,9 +283,7 @@ pub fn check_schema_in(f: &'static Format, conn: &Connection, pages: u32) -> Res
             }
             "view" => return Err(format!("has a view '{name}', which {none} has")),
             "table" if is_virtual => {
-                return Err(format!(
-                    "has a virtual table '{name}', which {none} has"
-                ))
+                return Err(format!("has a virtual table '{name}', which {none} has"))
             }
             "table" | "index" => {}
             other => {

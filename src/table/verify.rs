@@ -362,7 +362,10 @@ pub fn diagnosis(checks: &[Check]) -> Option<String> {
             )
         });
     }
-    if let Some(c) = counts.iter().find(|c| ROW_COUNTS.contains(&c.name.as_str())) {
+    if let Some(c) = counts
+        .iter()
+        .find(|c| ROW_COUNTS.contains(&c.name.as_str()))
+    {
         return Some(format!(
             "row count differs ({}); the content differs too",
             said(c)

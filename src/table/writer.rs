@@ -31,9 +31,9 @@ use crate::arith::primes::factor_text;
 use crate::error::{Error, Result};
 use crate::form::galois::GaloisGroup;
 use crate::table::atomic::TempFile;
+use crate::table::format::{Format, TABLE};
 use crate::table::group::label;
 use crate::table::row::{ClassRow, Pair, Params, Table};
-use crate::table::format::{Format, TABLE};
 use crate::table::schema::{
     place_to_column, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_VERSION,
 };

@@ -98,7 +98,12 @@ pub fn run(a: Args) -> Result<(), Error> {
             let man = read_dataset_manifest(m)?;
             let file = m.with_file_name(&man.file.name);
             let conn = open_checked_as(&CURVES, &file).map_err(|(_, e)| e)?;
-            same_content(&file, m, &man.content_sha256, &content_sha256_in(&CURVES, &conn)?)?;
+            same_content(
+                &file,
+                m,
+                &man.content_sha256,
+                &content_sha256_in(&CURVES, &conn)?,
+            )?;
             Citation::of_curves(&man, year, a.url.clone(), file)
         }
         (Some(m), _) => {
@@ -207,7 +212,12 @@ impl Citation {
     }
 
     /// The citation of a curve dataset.
-    pub fn of_curves(m: &DatasetManifest, year: i64, url: Option<String>, file: PathBuf) -> Citation {
+    pub fn of_curves(
+        m: &DatasetManifest,
+        year: i64,
+        url: Option<String>,
+        file: PathBuf,
+    ) -> Citation {
         let y = m.parameters.height;
         Citation {
             title: format!(

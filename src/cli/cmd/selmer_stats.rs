@@ -9,8 +9,8 @@ use qorbits::arith::parse::parse_height;
 use qorbits::error::Error;
 use qorbits::selmer::dataset::{check_y, dataset_targets, write_dataset};
 use qorbits::selmer::{
-    estimated_seconds, family_selmer, family_statement, selmer_stats, stats_from_groups,
-    SelmerBin, SelmerStats,
+    estimated_seconds, family_selmer, family_statement, selmer_stats, stats_from_groups, SelmerBin,
+    SelmerStats,
 };
 use qorbits::table::atomic::check_target;
 use qorbits::table::json;

@@ -5,17 +5,17 @@ use crate::cmd::Jobs;
 use crate::out::emit;
 use crate::progress::Bar;
 use qorbits::error::Error;
-use qorbits::table::json;
 use qorbits::selmer::dataset::{
-    rebuild_dataset, read_dataset_manifest, verify_dataset, FORMAT as CURVES_FORMAT,
+    read_dataset_manifest, rebuild_dataset, verify_dataset, FORMAT as CURVES_FORMAT,
 };
+use qorbits::table::json;
 use qorbits::table::manifest::{
     check_file_name, default_manifest_path, diagnosis, manifest_format, read_manifest,
     rebuild_and_compare, verify, Check,
 };
-use std::path::Path;
 use serde_json::Value;
 use std::fmt::Write;
+use std::path::Path;
 use std::path::PathBuf;
 use std::process::ExitCode;
 

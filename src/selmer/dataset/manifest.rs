@@ -78,12 +78,15 @@ fn by_value(conn: &Connection, column: &str) -> Result<Vec<u64>> {
     let mut out = Vec::new();
     for (v, n) in pairs {
         // A rank of a curve of the family is at most a few dozen; anything else is damage.
-        let v = usize::try_from(v).ok().filter(|v| *v <= 64).ok_or_else(|| {
-            Error::Database(format!(
+        let v = usize::try_from(v)
+            .ok()
+            .filter(|v| *v <= 64)
+            .ok_or_else(|| {
+                Error::Database(format!(
                 "the curve dataset holds {column} = {v}, which no curve has; verify it against \
                  its manifest"
             ))
-        })?;
+            })?;
         if out.len() <= v {
             out.resize(v + 1, 0);
         }
@@ -215,13 +218,14 @@ pub fn verify_dataset(db: &Path, m: &DatasetManifest) -> Result<Vec<Check>> {
     ));
     out.push(check("curves", m.counts.curves, counts.curves));
     out.push(check("elements", m.counts.elements, counts.elements));
-    let ranks = m.counts.by_selmer_rank.len().max(counts.by_selmer_rank.len());
+    let ranks = m
+        .counts
+        .by_selmer_rank
+        .len()
+        .max(counts.by_selmer_rank.len());
     for r in 0..ranks {
         let at = |v: &[u64]| v.get(r).copied().unwrap_or(0);
-        let (want, got) = (
-            at(&m.counts.by_selmer_rank),
-            at(&counts.by_selmer_rank),
-        );
+        let (want, got) = (at(&m.counts.by_selmer_rank), at(&counts.by_selmer_rank));
         out.push(check(&format!("selmer rank {r}"), want, got));
     }
     let t = &m.counts.by_two_torsion_rank;

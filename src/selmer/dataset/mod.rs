@@ -275,7 +275,10 @@ mod tests {
     #[test]
     fn meta_values_are_those_written() {
         assert!(meta_ok("family", &family_statement(10_000)));
-        assert!(!meta_ok("family", &family_statement(10_000).replace("!=", "=")));
+        assert!(!meta_ok(
+            "family",
+            &family_statement(10_000).replace("!=", "=")
+        ));
         assert!(!meta_ok("family", &family_statement(0)));
         assert!(meta_ok("height", "10000") && !meta_ok("height", "1e4"));
         assert!(!meta_ok("ordering", "A,B"));
