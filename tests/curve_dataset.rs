@@ -601,3 +601,66 @@ fn sigkill_at_any_moment_leaves_no_finished_looking_corrupt_file() {
     assert_eq!(manifest(&work)["content_sha256"], want);
     assert_eq!(verify(&work).0, 0);
 }
+
+/// The dotted keys of a JSON object (`x`, `x.y`), as `docs/output.md` lists them.
+fn keys(v: &serde_json::Value, prefix: &str, out: &mut Vec<String>) {
+    for (k, x) in v.as_object().unwrap() {
+        let name = format!("{prefix}{k}");
+        out.push(name.clone());
+        if x.is_object() {
+            keys(x, &format!("{name}."), out);
+        }
+    }
+}
+
+#[test]
+fn the_manifest_has_the_documented_keys_and_hostile_manifests_are_refused() {
+    let d = TestDir::new("curves-manifest");
+    write(&d.0, "1e3", "1");
+    let m = manifest(&d.0);
+    let doc = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/output.md"))
+        .unwrap();
+    let block = doc
+        .split("```keys curves-manifest\n")
+        .nth(1)
+        .and_then(|b| b.split("```").next())
+        .expect("docs/output.md lists the keys of the curve manifest");
+    let mut documented: Vec<String> = block
+        .lines()
+        .filter_map(|l| l.split(':').next())
+        .map(str::to_string)
+        .collect();
+    let mut found = Vec::new();
+    keys(&m, "", &mut found);
+    documented.sort();
+    found.sort();
+    assert_eq!(found, documented);
+    // Untrusted manifests: a path as file name, an impossible height, another family text.
+    let edits: [(&str, &dyn Fn(&mut serde_json::Value)); 3] = [
+        ("path", &|m| m["file"]["name"] = "../curves.sqlite".into()),
+        ("height", &|m| m["parameters"]["height"] = 0.into()),
+        ("family", &|m| {
+            m["parameters"]["family"] = "all curves".into()
+        }),
+    ];
+    for (name, edit) in edits {
+        let mut bad = m.clone();
+        edit(&mut bad);
+        let p = d.join(&format!("{name}.manifest.json"));
+        std::fs::write(&p, serde_json::to_string(&bad).unwrap()).unwrap();
+        let shown = p.display().to_string();
+        for args in [
+            vec!["verify", shown.as_str()],
+            vec!["verify", "--rebuild", shown.as_str()],
+        ] {
+            let o = qorbits(&args, &d.0);
+            let err = String::from_utf8_lossy(&o.stderr).into_owned();
+            assert_eq!(o.status.code(), Some(2), "{name}: {err}");
+            assert!(
+                err.contains("not a valid qorbits manifest"),
+                "{name}: {err}"
+            );
+            assert_one_line(err.trim_end());
+        }
+    }
+}
