@@ -80,16 +80,26 @@ const TABLE_META_KEYS: [&str; 6] = [
     "schema_version",
 ];
 
-/// The meta values of a table: a height a table can have, `0`/`1`, the label rule, the
-/// ordering, the schema version and a version number for the builder.
+/// The meta values of a table: a height a table can have, `0`/`1`, and the rows every
+/// format has ([`shared_meta_ok`]).
 fn table_meta_ok(k: &str, v: &str) -> bool {
     match k {
         "height" => is_height(v, crate::enumerate::bounds::MAX_HEIGHT),
         "include_reducible" => v == "0" || v == "1",
-        "label_rule" => v == LABEL_RULE,
-        "ordering" => v == ORDERING,
-        "schema_version" => v == SCHEMA_VERSION.to_string(),
-        _ => is_version(v),
+        _ => shared_meta_ok(k, v, ORDERING, SCHEMA_VERSION).unwrap_or(false),
+    }
+}
+
+/// The `meta` rows every format has: a version number as `builder_version`, the table's
+/// label rule (which labels in any file follow), the format's row `ordering` and its
+/// `schema_version`. `None` for another key.
+pub fn shared_meta_ok(k: &str, v: &str, ordering: &str, schema_version: u32) -> Option<bool> {
+    match k {
+        "builder_version" => Some(is_version(v)),
+        "label_rule" => Some(v == LABEL_RULE),
+        "ordering" => Some(v == ordering),
+        "schema_version" => Some(v == schema_version.to_string()),
+        _ => None,
     }
 }
 

@@ -84,21 +84,20 @@ const ROW_COUNTS: [&str; 4] = ["classes", "pairs", "curves", "elements"];
 /// table yields failed checks; a missing file, a directory or another kind of non-regular
 /// file is an error.
 pub fn verify(db: &Path, m: &Manifest) -> Result<Vec<Check>> {
-    let format = (m.format != FORMAT).then(|| m.format.as_str());
+    let format = (m.format != FORMAT).then_some(m.format.as_str());
     let (mut out, conn) = verify_file(db, &TABLE, &m.file, m.versions.schema, format)?;
     let Some(conn) = conn else {
         return Ok(out);
     };
-    let got =
-        (|| -> Result<_> { Ok((table_params(&conn)?, counts(&conn)?, content_sha256(&conn)?)) })();
-    let (params, counts, content) = match got {
-        Ok(g) => g,
-        Err(e) => {
-            out.push(outcome("content sha256", false, e.to_string()));
-            return Ok(out);
-        }
+    let got = (|| -> Result<_> {
+        Ok((
+            (table_params(&conn)?, counts(&conn)?),
+            content_sha256(&conn)?,
+        ))
+    })();
+    let Some((params, counts)) = content_check(&mut out, &m.content_sha256, got) else {
+        return Ok(out);
     };
-    out.push(check("content sha256", &m.content_sha256, content));
     out.push(check("height", m.parameters.height, params.height));
     out.push(check(
         "include_reducible",
@@ -122,6 +121,22 @@ pub fn verify(db: &Path, m: &Manifest) -> Result<Vec<Check>> {
         out.push(check(&format!("galois {k}"), v, got));
     }
     Ok(out)
+}
+
+/// Pushes the check of the content hash of an opened file: `got` is what the format reads
+/// (parameters, counts) with the hash it computed, or why it could not read them. Returns
+/// what was read, `None` when reading failed.
+pub fn content_check<T>(out: &mut Vec<Check>, want: &str, got: Result<(T, String)>) -> Option<T> {
+    match got {
+        Ok((t, hash)) => {
+            out.push(check("content sha256", want, hash));
+            Some(t)
+        }
+        Err(e) => {
+            out.push(outcome("content sha256", false, e.to_string()));
+            None
+        }
+    }
 }
 
 /// The checks every format shares, in order: the file's size and SHA-256 against `file`,

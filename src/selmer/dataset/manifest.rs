@@ -18,7 +18,7 @@ use crate::table::hash::{content_sha256_in, file_sha256};
 use crate::table::manifest::{check_file_info, content_recipe_of, FileInfo, Versions};
 use crate::table::reader::read_error;
 use crate::table::validate::open_checked_as;
-use crate::table::verify::{check, outcome, verify_file, Check};
+use crate::table::verify::{check, content_check, outcome, verify_file, Check};
 use rusqlite::Connection;
 use serde::{Deserialize, Serialize};
 use std::path::Path;
@@ -194,18 +194,10 @@ pub fn verify_dataset(db: &Path, m: &DatasetManifest) -> Result<Vec<Check>> {
     let Some(conn) = conn else {
         return Ok(out);
     };
-    let got = (|| -> Result<_> {
-        let (p, c) = read_counts(&conn)?;
-        Ok((p, c, content_sha256_in(&CURVES, &conn)?))
-    })();
-    let (params, counts, content) = match got {
-        Ok(g) => g,
-        Err(e) => {
-            out.push(outcome("content sha256", false, e.to_string()));
-            return Ok(out);
-        }
+    let got = (|| -> Result<_> { Ok((read_counts(&conn)?, content_sha256_in(&CURVES, &conn)?)) })();
+    let Some((params, counts)) = content_check(&mut out, &m.content_sha256, got) else {
+        return Ok(out);
     };
-    out.push(check("content sha256", &m.content_sha256, content));
     out.push(check("height", m.parameters.height, params.height));
     out.push(outcome(
         "family",

@@ -32,7 +32,7 @@ pub mod manifest;
 use crate::error::{Error, Result};
 use crate::selmer::{family_statement, short_height, Selmer};
 use crate::table::atomic::{check_target, TempFile};
-use crate::table::format::{is_height, is_version, Format};
+use crate::table::format::{is_height, shared_meta_ok, Format};
 use crate::table::manifest::default_manifest_path;
 use crate::table::schema::LABEL_RULE;
 use crate::table::writer::{new_database, write_error};
@@ -81,10 +81,7 @@ fn meta_ok(k: &str, v: &str) -> bool {
     match k {
         "family" => statement_height(v).is_some_and(|y| (1..=MAX_Y).contains(&y)),
         "height" => is_height(v, MAX_Y),
-        "label_rule" => v == LABEL_RULE,
-        "ordering" => v == ORDERING,
-        "schema_version" => v == SCHEMA_VERSION.to_string(),
-        _ => is_version(v),
+        _ => shared_meta_ok(k, v, ORDERING, SCHEMA_VERSION).unwrap_or(false),
     }
 }
 
