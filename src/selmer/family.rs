@@ -10,7 +10,7 @@
 use crate::arith::poly::integer_roots;
 use crate::error::{Error, Result};
 use crate::progress::Progress;
-use crate::selmer::{selmer_of_pair, two_selmer, Curve};
+use crate::selmer::{selmer_of_pair, two_selmer, Curve, Selmer};
 use crate::table::pipeline::classes_of_congruent_pairs;
 use rayon::prelude::*;
 use rug::Integer;
@@ -187,6 +187,26 @@ pub fn selmer_stats_by(
     stats_of(y, short_family(y), route, progress)
 }
 
+/// The statement of the family of [`short_family`] for a height bound, in words (as
+/// `selmer-stats` prints it and the curve dataset records it).
+pub fn family_statement(y: i128) -> String {
+    format!(
+        "all integer pairs (A, B) with max(4|A|^3, 27B^2) < {y}, 4A^3 + 27B^2 != 0, no prime p \
+         with p^4 | A and p^6 | B, and x^3 + Ax + B without a rational root; each pair is one \
+         curve y^2 = x^3 + Ax + B"
+    )
+}
+
+/// The 2-Selmer group of every curve of [`short_family`]`(y)`, elements included, in family
+/// order, by the route of [`cheaper_route`] on the current rayon pool (as [`selmer_stats`]).
+pub fn family_selmer(y: i128, progress: &dyn Progress) -> Result<Vec<((i64, i64), Selmer)>> {
+    positive(y)?;
+    let family = short_family(y);
+    let route = cheaper_route(y, &family);
+    let groups = groups_of(y, &family, route, progress)?;
+    Ok(family.into_iter().zip(groups).collect())
+}
+
 fn positive(y: i128) -> Result<()> {
     if y < 1 {
         return Err(Error::Input(format!(
@@ -196,22 +216,23 @@ fn positive(y: i128) -> Result<()> {
     Ok(())
 }
 
-fn stats_of(
+/// The 2-Selmer group of each curve of `family` (the family below `y`), in its order.
+fn groups_of(
     y: i128,
-    family: Vec<(i64, i64)>,
+    family: &[(i64, i64)],
     route: FamilyRoute,
     progress: &dyn Progress,
-) -> Result<SelmerStats> {
+) -> Result<Vec<Selmer>> {
     let curve = |&(a, b): &(i64, i64)| Curve::short(Integer::from(a), Integer::from(b));
-    let ranks: Vec<Result<u32>> = match route {
+    match route {
         FamilyRoute::PerPair => {
             progress.start("curves", family.len() as u64);
             family
                 .par_iter()
                 .map(|ab| {
-                    let r = two_selmer(&curve(ab)?).map(|s| s.rank);
+                    let s = two_selmer(&curve(ab)?);
                     progress.advance(1);
-                    r
+                    s
                 })
                 .collect()
         }
@@ -222,10 +243,34 @@ fn stats_of(
             family
                 .par_iter()
                 .zip(found.par_iter())
-                .map(|(ab, pair)| selmer_of_pair(&curve(ab)?, pair).map(|s| s.rank))
+                .map(|(ab, pair)| selmer_of_pair(&curve(ab)?, pair))
                 .collect()
         }
-    };
+    }
+}
+
+fn stats_of(
+    y: i128,
+    family: Vec<(i64, i64)>,
+    route: FamilyRoute,
+    progress: &dyn Progress,
+) -> Result<SelmerStats> {
+    let groups = groups_of(y, &family, route, progress)?;
+    let ranks: Vec<((i64, i64), u32)> = family
+        .into_iter()
+        .zip(groups.iter().map(|s| s.rank))
+        .collect();
+    Ok(stats_of_ranks(y, &ranks))
+}
+
+/// The averages of [`selmer_stats`] from the groups of [`family_selmer`]`(y)` (so a caller
+/// that needs the elements too computes the family once).
+pub fn stats_from_groups(y: i128, groups: &[((i64, i64), Selmer)]) -> SelmerStats {
+    let ranks: Vec<((i64, i64), u32)> = groups.iter().map(|(ab, s)| (*ab, s.rank)).collect();
+    stats_of_ranks(y, &ranks)
+}
+
+fn stats_of_ranks(y: i128, ranks: &[((i64, i64), u32)]) -> SelmerStats {
     let empty = |lo, hi| SelmerBin {
         lo,
         hi,
@@ -235,9 +280,8 @@ fn stats_of(
     };
     let mut all = empty(0, y);
     let mut bins: Vec<SelmerBin> = Vec::new();
-    let mut curves = Vec::with_capacity(family.len());
-    for (&(a, b), r) in family.iter().zip(ranks) {
-        let r = r?;
+    let mut curves = Vec::with_capacity(ranks.len());
+    for &((a, b), r) in ranks {
         let h = short_height(a, b);
         all.add(r);
         if bins.last().is_none_or(|bin| h >= bin.hi) {
@@ -250,12 +294,12 @@ fn stats_of(
         bins.last_mut().expect("pushed").add(r);
         curves.push((a, b, r));
     }
-    Ok(SelmerStats {
+    SelmerStats {
         height: y,
         curves,
         all,
         bins,
-    })
+    }
 }
 
 #[cfg(test)]

@@ -1,6 +1,7 @@
 //! 2-Selmer groups of elliptic curves over Q from the classes of integral binary quartic
 //! forms with invariants `(I, J) = (c4, 2·c6)`, and the average size of the 2-Selmer group
-//! over a family of short Weierstrass curves.
+//! over a family of short Weierstrass curves; [`dataset`] writes that family's curves and
+//! Selmer elements as a citable SQLite file.
 //!
 //! The curve `E: y² + a1xy + a3y = x³ + a2x² + a4x + a6` is isomorphic over Q to
 //! `E_{I,J}: y² = x³ − 27Ix − 27J` for `(I, J) = (c4, 2c6)` (substitute x ↦ x/36 − b2/12
@@ -25,12 +26,14 @@
 //! assert_eq!((s.rank, s.elements.len()), (1, 1));
 //! ```
 mod curve;
+pub mod dataset;
 mod family;
 mod group;
 
 pub use curve::Curve;
 pub use family::{
-    cheaper_route, estimated_seconds, selmer_stats, selmer_stats_by, short_family, short_height,
-    FamilyRoute, SelmerBin, SelmerStats,
+    cheaper_route, estimated_seconds, family_selmer, family_statement, selmer_stats,
+    selmer_stats_by, short_family, short_height, stats_from_groups, FamilyRoute, SelmerBin,
+    SelmerStats,
 };
 pub use group::{selmer_of_pair, two_selmer, Selmer};

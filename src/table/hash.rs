@@ -1,6 +1,6 @@
 //! The two hashes of a table (DESIGN §5): the SHA-256 of the file ([`file_sha256`]) and
 //! the content hash ([`content_sha256`]), the SHA-256 of the text the `sqlite3` shell
-//! prints for [`CONTENT_SQL`] — reproducible without qorbits.
+//! prints for [`CONTENT_SQL`](crate::table::schema::CONTENT_SQL) — reproducible without qorbits.
 //!
 //! ```
 //! use qorbits::table::hash::hex;
@@ -8,9 +8,9 @@
 //! ```
 
 use crate::error::{Error, Result};
+use crate::table::format::{Format, TABLE};
 use crate::table::reader::{read_error, shown};
-use crate::table::schema::{CONTENT_SQL, SCHEMA_VERSION};
-use crate::table::schema_check::columns;
+use crate::table::schema_check::columns_in;
 use rusqlite::types::ValueRef;
 use rusqlite::Connection;
 use sha2::{Digest, Sha256};
@@ -18,28 +18,31 @@ use std::fs::File;
 use std::io::{Read, Write};
 use std::path::Path;
 
-/// The statements of [`CONTENT_SQL`], in order.
-fn content_statements() -> impl Iterator<Item = &'static str> {
-    CONTENT_SQL
-        .split(';')
-        .map(str::trim)
-        .filter(|s| !s.is_empty())
+/// The statements of a content SQL, in order.
+fn content_statements(sql: &'static str) -> impl Iterator<Item = &'static str> {
+    sql.split(';').map(str::trim).filter(|s| !s.is_empty())
 }
 
-/// Writes the rendering of [`CONTENT_SQL`] that [`content_sha256`] hashes: what the
+/// Writes the rendering of [`CONTENT_SQL`](crate::table::schema::CONTENT_SQL) that [`content_sha256`] hashes: what the
 /// `sqlite3` shell prints in list mode with separator `|` and no header (integers in
 /// decimal, text verbatim, NULL as the empty string, each row ended by `\n`).
 pub fn render_content(conn: &Connection, out: &mut dyn Write) -> Result<()> {
+    render_content_in(&TABLE, conn, out)
+}
+
+/// [`render_content`] of a file of format `f`: its [`Format::content_sql`], each value
+/// checked against the column types of its schema.
+pub fn render_content_in(f: &'static Format, conn: &Connection, out: &mut dyn Write) -> Result<()> {
     let io = |e: std::io::Error| Error::Io(format!("cannot write the content rendering: {e}"));
     let mut line = Vec::new();
-    for sql in content_statements() {
+    for sql in content_statements(f.content_sql) {
         // Each statement is `SELECT * FROM <table> ...`: its columns are the table's.
         let table = sql
             .split_whitespace()
             .skip_while(|w| *w != "FROM")
             .nth(1)
             .expect("a table in every content statement");
-        let cols = columns(table).expect("content statements name schema tables");
+        let cols = columns_in(f, table).expect("content statements name schema tables");
         let mut st = conn.prepare(sql).map_err(|e| read_error(conn, e))?;
         let n = st.column_count();
         let mut rows = st.query([]).map_err(|e| read_error(conn, e))?;
@@ -79,10 +82,12 @@ pub fn render_content(conn: &Connection, out: &mut dyn Write) -> Result<()> {
                     };
                     return Err(Error::Database(format!(
                         "{}: {table}.{name} holds {} in row {row} of \"{sql}\" where schema version \
-                         {SCHEMA_VERSION} has {decl}{not_null}; the table is damaged or was edited, \
-                         verify it against its manifest",
+                         {} has {decl}{not_null}; the {} is damaged or was edited, verify it \
+                         against its manifest",
                         shown(conn),
                         kind.to_ascii_uppercase(),
+                        f.schema_version,
+                        f.noun,
                     )));
                 }
             }
@@ -114,8 +119,13 @@ pub fn hex(bytes: &[u8]) -> String {
 /// The content hash: SHA-256 (lowercase hex) of [`render_content`], equal to
 /// `sqlite3 -batch -noheader -list -separator '|' FILE "<CONTENT_SQL>" | sha256sum`.
 pub fn content_sha256(conn: &Connection) -> Result<String> {
+    content_sha256_in(&TABLE, conn)
+}
+
+/// [`content_sha256`] of a file of format `f` ([`render_content_in`]).
+pub fn content_sha256_in(f: &'static Format, conn: &Connection) -> Result<String> {
     let mut h = HashWriter(Sha256::new());
-    render_content(conn, &mut h)?;
+    render_content_in(f, conn, &mut h)?;
     Ok(hex(&h.0.finalize()))
 }
 

@@ -16,7 +16,8 @@
 //! assert!(e.contains("application_id"), "{e}");
 //! ```
 
-use crate::table::schema::{APPLICATION_ID, PAGE_SIZE, SCHEMA_VERSION};
+use crate::table::format::{Format, TABLE};
+use crate::table::schema::PAGE_SIZE;
 
 /// The length of the header.
 pub const HEADER_LEN: usize = 100;
@@ -93,24 +94,30 @@ impl Header {
 /// Checks the header of a file of `file_len` bytes: `Err` names the first field that is not
 /// what a qorbits table has, in words that fit in a sentence after the file name.
 pub fn check_header(b: &[u8; HEADER_LEN], file_len: u64) -> Result<Header, String> {
+    check_header_for(&TABLE, b, file_len)
+}
+
+/// [`check_header`] for a file of format `f`: its application id and schema version.
+pub fn check_header_for(f: &Format, b: &[u8; HEADER_LEN], file_len: u64) -> Result<Header, String> {
     let h = Header::parse(b).ok_or_else(|| {
         "does not start with the SQLite header, so it is not an SQLite file".to_string()
     })?;
-    if h.application_id != APPLICATION_ID as u32 {
+    let noun = f.noun;
+    if h.application_id != f.application_id as u32 {
         return Err(format!(
-            "is an SQLite database but not a qorbits table (application_id {:#010x}, expected {:#010x})",
-            h.application_id, APPLICATION_ID
+            "is an SQLite database but not a qorbits {noun} (application_id {:#010x}, expected {:#010x})",
+            h.application_id, f.application_id
         ));
     }
-    if h.user_version != SCHEMA_VERSION {
+    if h.user_version != f.schema_version {
         return Err(format!(
-            "is a qorbits table with schema version {}, but this qorbits reads version {SCHEMA_VERSION}",
-            h.user_version
+            "is a qorbits {noun} with schema version {}, but this qorbits reads version {}",
+            h.user_version, f.schema_version
         ));
     }
     let field = |what: &str, got: String, want: String| {
         Err(format!(
-            "has a damaged database header: {what} is {got}, a qorbits table has {want}"
+            "has a damaged database header: {what} is {got}, a qorbits {noun} has {want}"
         ))
     };
     if h.page_size != PAGE_SIZE {
@@ -218,8 +225,8 @@ mod tests {
         h[28..32].copy_from_slice(&3u32.to_be_bytes());
         h[44..48].copy_from_slice(&4u32.to_be_bytes());
         h[56..60].copy_from_slice(&1u32.to_be_bytes());
-        h[60..64].copy_from_slice(&SCHEMA_VERSION.to_be_bytes());
-        h[68..72].copy_from_slice(&(APPLICATION_ID as u32).to_be_bytes());
+        h[60..64].copy_from_slice(&TABLE.schema_version.to_be_bytes());
+        h[68..72].copy_from_slice(&(TABLE.application_id as u32).to_be_bytes());
         h[92..96].copy_from_slice(&1u32.to_be_bytes());
         h
     }

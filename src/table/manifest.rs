@@ -103,8 +103,14 @@ pub fn default_manifest_path(db: &Path) -> PathBuf {
 
 /// The shell recipe for the content hash of `file_name`.
 pub fn content_recipe(file_name: &str) -> String {
+    content_recipe_of(file_name, CONTENT_SQL)
+}
+
+/// The shell recipe for the hash of what the sqlite3 shell prints for `sql` on `file_name`
+/// (the content hash of a file whose format has that content SQL).
+pub fn content_recipe_of(file_name: &str, sql: &str) -> String {
     format!(
-        "sqlite3 -batch -init /dev/null -noheader -list -separator '|' {file_name} \"{CONTENT_SQL}\" | sha256sum"
+        "sqlite3 -batch -init /dev/null -noheader -list -separator '|' {file_name} \"{sql}\" | sha256sum"
     )
 }
 
@@ -214,16 +220,7 @@ pub fn check_file_name(name: &str) -> std::result::Result<(), String> {
 
 /// The checks [`read_manifest`] makes on a parsed manifest before anything uses it.
 fn check_manifest(m: &Manifest) -> std::result::Result<(), String> {
-    check_file_name(&m.file.name).map_err(|why| {
-        format!(
-            "its file name {:?} {why}; a manifest names a plain file, never a path",
-            m.file.name
-        )
-    })?;
-    let hex64 = |h: &str| h.len() == 64 && h.bytes().all(|b| b.is_ascii_hexdigit());
-    if !hex64(&m.file.sha256) || !hex64(&m.content_sha256) {
-        return Err("its hashes are not 64 hexadecimal digits".into());
-    }
+    check_file_info(&m.file, &m.content_sha256)?;
     if !(1..=crate::enumerate::bounds::MAX_HEIGHT).contains(&m.parameters.height) {
         return Err(format!(
             "its height {} is outside the heights a table can have (1 to {})",
@@ -231,14 +228,40 @@ fn check_manifest(m: &Manifest) -> std::result::Result<(), String> {
             crate::enumerate::bounds::MAX_HEIGHT
         ));
     }
+    Ok(())
+}
+
+/// The checks of the `file` part and the content hash of any manifest (untrusted input):
+/// a plain file name ([`check_file_name`]), hashes of 64 hexadecimal digits, and a size that
+/// is whole pages below SQLite's limit. `Err` follows "… is not a valid qorbits manifest: ".
+pub fn check_file_info(file: &FileInfo, content_sha256: &str) -> std::result::Result<(), String> {
+    check_file_name(&file.name).map_err(|why| {
+        format!(
+            "its file name {:?} {why}; a manifest names a plain file, never a path",
+            file.name
+        )
+    })?;
+    let hex64 = |h: &str| h.len() == 64 && h.bytes().all(|b| b.is_ascii_hexdigit());
+    if !hex64(&file.sha256) || !hex64(content_sha256) {
+        return Err("its hashes are not 64 hexadecimal digits".into());
+    }
     // SQLite's own limit on a database file is below 2^48 bytes; a table is whole pages.
-    if m.file.bytes == 0 || m.file.bytes > 1 << 48 || m.file.bytes % u64::from(PAGE_SIZE) != 0 {
+    if file.bytes == 0 || file.bytes > 1 << 48 || file.bytes % u64::from(PAGE_SIZE) != 0 {
         return Err(format!(
             "its file size {} bytes is impossible (a table is whole pages of {PAGE_SIZE} bytes, below 2^48 bytes)",
-            m.file.bytes
+            file.bytes
         ));
     }
     Ok(())
+}
+
+/// The `format` field of a manifest file, or `None` when the file cannot be read, is not a
+/// JSON object or has no text `format`: the tag that says which kind of file a manifest
+/// describes ([`FORMAT`] for a table), read before the manifest is parsed as that kind.
+pub fn manifest_format(path: &Path) -> Option<String> {
+    let text = std::fs::read_to_string(path).ok()?;
+    let v: serde_json::Value = serde_json::from_str(&text).ok()?;
+    v.get("format")?.as_str().map(str::to_string)
 }
 
 /// Read a manifest, with a clear error for a missing, malformed or implausible file (see

@@ -1,6 +1,6 @@
 //! Stage 4, the table: row types ([`row`]), the classification of candidates
 //! ([`classify`]), the grouping into labelled pairs ([`group`]), the pipeline and the build
-//! ([`pipeline`]), the storage contract ([`schema`]), the writer ([`writer`]) with its
+//! ([`pipeline`]), the storage contract ([`schema`]) and the kinds of file ([`format`]), the writer ([`writer`]) with its
 //! atomic files ([`atomic`]), the reader ([`reader`]) and what it checks of a file before
 //! reading it ([`validate`], [`header`], [`schema_check`], [`pair_check`]), the hashes
 //! ([`hash`]), manifests ([`manifest`]), verification ([`verify`], [`pages`]), the JSON
@@ -13,6 +13,7 @@ pub mod atomic;
 pub mod build;
 pub mod classify;
 pub mod export;
+pub mod format;
 pub mod group;
 pub mod hash;
 pub mod header;

@@ -4,7 +4,8 @@
 //! table, no extra table or index, no column of another type, no constraint, collation or
 //! default of its own. The reference is made by running those two files in an in-memory
 //! database and reading its `sqlite_schema` and `pragma_table_xinfo` back, so it cannot
-//! drift from the writer. A mismatch is named in words (which object, which column).
+//! drift from the writer. A mismatch is named in words (which object, which column). The
+//! `_in` functions check a file of another [`Format`] the same way against its own SQL.
 //!
 //! ```
 //! use qorbits::table::schema_check::{check_schema, columns};
@@ -15,10 +16,9 @@
 //! assert_eq!(columns("classes").unwrap().len(), 20);
 //! ```
 
+use crate::table::format::{Format, TABLE};
 use crate::table::pages::{Slot, Tree};
-use crate::table::schema::{INDEX_SQL, SCHEMA_SQL, SCHEMA_VERSION};
 use rusqlite::Connection;
-use std::sync::OnceLock;
 
 /// One row of `sqlite_schema`.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -57,7 +57,8 @@ impl Column {
     }
 }
 
-struct Reference {
+/// The schema of a [`Format`] as SQLite stores it, built once per format.
+pub(crate) struct Reference {
     entries: Vec<Entry>,
     columns: Vec<(String, Vec<Column>)>,
     /// Each table and index as a b-tree (root pages as in the reference database).
@@ -164,15 +165,13 @@ fn table_columns(conn: &Connection, table: &str) -> rusqlite::Result<Vec<Column>
     })
 }
 
-fn reference() -> &'static Reference {
-    static R: OnceLock<Reference> = OnceLock::new();
-    R.get_or_init(|| {
+fn reference(f: &'static Format) -> &'static Reference {
+    f.reference.get_or_init(|| {
         // The SQL is compiled in and run by the writer on every build; failing here is a
         // defect of this build, which the unit tests would show.
         let c = Connection::open_in_memory().expect("an in-memory database");
-        c.execute_batch(SCHEMA_SQL).expect("schema/v4.sql runs");
-        c.execute_batch(INDEX_SQL)
-            .expect("schema/v4-indexes.sql runs");
+        c.execute_batch(f.schema_sql).expect("the schema SQL runs");
+        c.execute_batch(f.index_sql).expect("the index SQL runs");
         let entries = entries(&c).expect("the reference schema reads back");
         let columns = entries
             .iter()
@@ -204,19 +203,25 @@ fn reference() -> &'static Reference {
     })
 }
 
-/// The columns of a table of the schema, in order (`None` for a name the schema lacks).
+/// The columns of a table of the table schema, in order (`None` for a name the schema
+/// lacks).
 pub fn columns(table: &str) -> Option<&'static [Column]> {
-    reference()
+    columns_in(&TABLE, table)
+}
+
+/// The columns of a table of the schema of `f`, in order.
+pub fn columns_in(f: &'static Format, table: &str) -> Option<&'static [Column]> {
+    reference(f)
         .columns
         .iter()
         .find(|(t, _)| t == table)
         .map(|(_, c)| c.as_slice())
 }
 
-/// The b-trees of a file whose schema passed [`check_schema`]: `sqlite_schema` on page 1
-/// and every table and index at the root page the file records, with the records the
-/// schema gives them.
-pub fn trees(conn: &Connection) -> rusqlite::Result<Vec<Tree>> {
+/// The b-trees of a file of format `f` whose schema passed [`check_schema_in`]:
+/// `sqlite_schema` on page 1 and every table and index at the root page the file records,
+/// with the records the schema gives them.
+pub fn trees_in(f: &'static Format, conn: &Connection) -> rusqlite::Result<Vec<Tree>> {
     let text = |nullable| Slot::Text { nullable };
     let mut out = vec![Tree {
         name: "sqlite_schema".into(),
@@ -232,7 +237,7 @@ pub fn trees(conn: &Connection) -> rusqlite::Result<Vec<Tree>> {
         key_len: 0,
     }];
     for e in entries(conn)? {
-        if let Some(t) = reference().records.iter().find(|t| t.name == e.name) {
+        if let Some(t) = reference(f).records.iter().find(|t| t.name == e.name) {
             out.push(Tree {
                 root: u32::try_from(e.root).unwrap_or(0),
                 ..t.clone()
@@ -251,12 +256,18 @@ pub fn shown_name(s: &str) -> String {
     out
 }
 
-/// Checks the schema of a file of `pages` pages. `Err` names the first difference in
+/// Checks the schema of a table file of `pages` pages. `Err` names the first difference in
 /// words that follow the file name ("has a trigger 'x' …").
 pub fn check_schema(conn: &Connection, pages: u32) -> Result<(), String> {
+    check_schema_in(&TABLE, conn, pages)
+}
+
+/// Checks the schema of a file of format `f` with `pages` pages (see [`check_schema`]).
+pub fn check_schema_in(f: &'static Format, conn: &Connection, pages: u32) -> Result<(), String> {
     let file = entries(conn).map_err(|e| format!("has a schema SQLite cannot read ({e})"))?;
-    let want = reference();
-    let v = SCHEMA_VERSION;
+    let want = reference(f);
+    let v = f.schema_version;
+    let none = format!("no qorbits {}", f.noun);
     for e in &file {
         let name = shown_name(&e.name);
         let is_virtual = e.sql.as_deref().is_some_and(|s| {
@@ -266,20 +277,18 @@ pub fn check_schema(conn: &Connection, pages: u32) -> Result<(), String> {
         match e.kind.as_str() {
             "trigger" => {
                 return Err(format!(
-                    "has a trigger '{name}' on '{}', which no qorbits table has",
+                    "has a trigger '{name}' on '{}', which {none} has",
                     shown_name(&e.table)
                 ))
             }
-            "view" => return Err(format!("has a view '{name}', which no qorbits table has")),
+            "view" => return Err(format!("has a view '{name}', which {none} has")),
             "table" if is_virtual => {
-                return Err(format!(
-                    "has a virtual table '{name}', which no qorbits table has"
-                ))
+                return Err(format!("has a virtual table '{name}', which {none} has"))
             }
             "table" | "index" => {}
             other => {
                 return Err(format!(
-                    "has a schema entry '{name}' of kind '{}', which no qorbits table has",
+                    "has a schema entry '{name}' of kind '{}', which {none} has",
                     shown_name(other)
                 ))
             }
@@ -306,8 +315,8 @@ pub fn check_schema(conn: &Connection, pages: u32) -> Result<(), String> {
             ));
         };
         if e.table != w.table || e.sql != w.sql {
-            return Err(match columns(&w.name) {
-                Some(cols) => column_difference(conn, &w.name, cols),
+            return Err(match columns_in(f, &w.name) {
+                Some(cols) => column_difference(conn, &w.name, cols, v),
                 None => format!(
                     "has an index '{}' that is not the one of schema version {v} (its CREATE \
                      statement differs)",
@@ -329,8 +338,7 @@ pub fn check_schema(conn: &Connection, pages: u32) -> Result<(), String> {
 }
 
 /// What differs between the columns of `table` in the file and `want`.
-fn column_difference(conn: &Connection, table: &str, want: &[Column]) -> String {
-    let v = SCHEMA_VERSION;
+fn column_difference(conn: &Connection, table: &str, want: &[Column], v: u32) -> String {
     let got = match table_columns(conn, table) {
         Ok(c) => c,
         Err(e) => return format!("has a table '{table}' whose columns cannot be read ({e})"),
@@ -390,8 +398,8 @@ mod tests {
 
     fn with(extra: &str) -> Result<(), String> {
         let c = Connection::open_in_memory().unwrap();
-        c.execute_batch(SCHEMA_SQL).unwrap();
-        c.execute_batch(INDEX_SQL).unwrap();
+        c.execute_batch(TABLE.schema_sql).unwrap();
+        c.execute_batch(TABLE.index_sql).unwrap();
         c.execute_batch(extra).unwrap();
         check_schema(&c, 1000)
     }

@@ -20,9 +20,10 @@
 //! ```
 
 use crate::error::{Error, Result};
-use crate::table::header::{check_header, HEADER_LEN};
-use crate::table::schema::{LABEL_RULE, ORDERING, SCHEMA_VERSION};
-use crate::table::schema_check::{check_schema, columns, shown_name};
+use crate::table::format::{Format, TABLE};
+use crate::table::header::{check_header_for, HEADER_LEN};
+use crate::table::schema::SCHEMA_VERSION;
+use crate::table::schema_check::{check_schema_in, columns, shown_name};
 use rusqlite::config::DbConfig;
 use rusqlite::limits::Limit;
 use rusqlite::types::ValueRef;
@@ -92,30 +93,40 @@ pub fn harden(conn: &Connection) -> rusqlite::Result<()> {
 /// Opens a qorbits table read-only after checking the file, its header, its schema and its
 /// `meta` rows; the error says at which [`Stage`] it was refused, in one line.
 pub fn open_checked(path: &Path) -> std::result::Result<Connection, (Stage, Error)> {
+    open_checked_as(&TABLE, path)
+}
+
+/// [`open_checked`] for a file of format `f`: the same stages against its header fields,
+/// schema and `meta` rows.
+pub fn open_checked_as(
+    f: &'static Format,
+    path: &Path,
+) -> std::result::Result<Connection, (Stage, Error)> {
     let p = path.display();
+    let noun = f.noun;
     let file = |m: String| (Stage::File, Error::Io(m));
     let m = match std::fs::metadata(path) {
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
             return Err(file(format!(
-                "no table at {p}: the file does not exist; check the path or build the table first"
+                "no {noun} at {p}: the file does not exist; check the path or build the {noun} first"
             )));
         }
         Err(e) => return Err(file(format!("cannot read {p}: {e}"))),
         Ok(m) => m,
     };
     if m.is_dir() {
-        return Err(file(format!("{p} is a directory, not a table file")));
+        return Err(file(format!("{p} is a directory, not a {noun} file")));
     }
     if !m.is_file() {
         return Err(file(format!(
-            "{p} is not a regular file (a device, socket or pipe), so not a table file"
+            "{p} is not a regular file (a device, socket or pipe), so not a {noun} file"
         )));
     }
     if m.len() == 0 {
         return Err((
             Stage::File,
             Error::Database(format!(
-                "{p} is empty (0 bytes), not a qorbits table; rebuild it"
+                "{p} is empty (0 bytes), not a qorbits {noun}; rebuild it"
             )),
         ));
     }
@@ -126,18 +137,18 @@ pub fn open_checked(path: &Path) -> std::result::Result<Connection, (Stage, Erro
         .map_err(|e| match e.kind() {
             std::io::ErrorKind::UnexpectedEof => header(format!(
                 "is not a readable SQLite file: {} bytes, shorter than the SQLite header, so it is \
-                 truncated or was never a table; check the path",
+                 truncated or was never a {noun}; check the path",
                 m.len()
             )),
             _ => file(format!("cannot read {p}: {e}")),
         })?;
-    let h = check_header(&bytes, m.len()).map_err(|why| {
+    let h = check_header_for(f, &bytes, m.len()).map_err(|why| {
         let advice = if why.contains("not an SQLite file") || why.contains("not a qorbits") {
-            "check the path"
+            "check the path".to_string()
         } else if why.contains("schema version") {
-            "use a matching qorbits release or rebuild the table"
+            format!("use a matching qorbits release or rebuild the {noun}")
         } else {
-            "verify it against its manifest or rebuild it"
+            "verify it against its manifest or rebuild it".to_string()
         };
         let why = why.replace(
             "does not start with the SQLite header, so it is not an SQLite file",
@@ -164,29 +175,24 @@ pub fn open_checked(path: &Path) -> std::result::Result<Connection, (Stage, Erro
         (
             stage,
             Error::Database(format!(
-                "{p} {why}; it is refused unread, use a table built by qorbits (or verify it against its manifest)"
+                "{p} {why}; it is refused unread, use a {noun} built by qorbits (or verify it against its manifest)"
             )),
         )
     };
-    check_schema(&conn, h.pages).map_err(|why| refused(Stage::Schema, why))?;
-    check_meta(&conn).map_err(|why| refused(Stage::Meta, why))?;
+    check_schema_in(f, &conn, h.pages).map_err(|why| refused(Stage::Schema, why))?;
+    check_meta_in(f, &conn).map_err(|why| refused(Stage::Meta, why))?;
     Ok(conn)
 }
 
-/// The `meta` rows a qorbits table has, in key order.
-const META_KEYS: [&str; 6] = [
-    "builder_version",
-    "height",
-    "include_reducible",
-    "label_rule",
-    "ordering",
-    "schema_version",
-];
-
-/// Checks the `meta` rows: exactly the keys of `META_KEYS`, text, with values this build writes (a
-/// height a table can have, `0`/`1`, the label rule, the ordering, the schema version and a
-/// version number for the builder).
+/// Checks the `meta` rows of a table: exactly the keys a table has, text, with values this
+/// build writes (a height a table can have, `0`/`1`, the label rule, the ordering, the
+/// schema version and a version number for the builder).
 pub fn check_meta(conn: &Connection) -> std::result::Result<(), String> {
+    check_meta_in(&TABLE, conn)
+}
+
+/// [`check_meta`] for a file of format `f`: its keys and [`Format::meta_value_ok`].
+pub fn check_meta_in(f: &Format, conn: &Connection) -> std::result::Result<(), String> {
     // Text is read as bytes: a file may hold any bytes, and only valid UTF-8 is text here.
     let as_text = |v: ValueRef<'_>| match v {
         ValueRef::Text(t) => std::str::from_utf8(t).ok().map(str::to_string),
@@ -210,36 +216,31 @@ pub fn check_meta(conn: &Connection) -> std::result::Result<(), String> {
         })
         .collect::<std::result::Result<_, _>>()?;
     let keys: Vec<&str> = got.iter().map(|(k, _)| k.as_str()).collect();
-    if keys != META_KEYS {
-        return Err(match keys.iter().find(|k| !META_KEYS.contains(k)) {
+    let want = f.meta_keys;
+    if keys != want {
+        return Err(match keys.iter().find(|k| !want.contains(k)) {
             Some(k) => format!(
                 "has the meta key '{}', which this qorbits does not write (it writes {})",
                 shown_name(k),
-                META_KEYS.join(", ")
+                want.join(", ")
             ),
             None => format!(
-                "has {} meta rows where a qorbits table has {} ({})",
+                "has {} meta rows where a qorbits {} has {} ({})",
                 keys.len(),
-                META_KEYS.len(),
-                META_KEYS.join(", ")
+                f.noun,
+                want.len(),
+                want.join(", ")
             ),
         });
     }
     let max = crate::enumerate::bounds::MAX_HEIGHT;
     for (k, v) in &got {
-        let ok = match k.as_str() {
-            "height" => v
-                .parse::<i128>()
-                .is_ok_and(|h| (1..=max).contains(&h) && h.to_string() == *v),
-            "include_reducible" => v == "0" || v == "1",
-            "label_rule" => v == LABEL_RULE,
-            "ordering" => v == ORDERING,
-            "schema_version" => *v == SCHEMA_VERSION.to_string(),
-            _ => is_version(v),
-        };
+        let ok = (f.meta_value_ok)(k, v);
         if !ok {
             let what = match k.as_str() {
-                "height" => format!(", not a height a table can have (1 to {max})"),
+                "height" if std::ptr::eq(f, &TABLE) => {
+                    format!(", not a height a table can have (1 to {max})")
+                }
                 _ => String::new(),
             };
             return Err(format!(
@@ -249,20 +250,6 @@ pub fn check_meta(conn: &Connection) -> std::result::Result<(), String> {
         }
     }
     Ok(())
-}
-
-/// A version number `x.y.z` with an optional `-suffix` of letters, digits and dots.
-fn is_version(v: &str) -> bool {
-    let (core, suffix) = v.split_once('-').unwrap_or((v, ""));
-    let parts: Vec<&str> = core.split('.').collect();
-    v.len() <= 64
-        && parts.len() == 3
-        && parts
-            .iter()
-            .all(|p| !p.is_empty() && p.bytes().all(|b| b.is_ascii_digit()))
-        && suffix
-            .bytes()
-            .all(|b| b.is_ascii_alphanumeric() || b == b'.')
 }
 
 /// The domain of the columns of `classes` that take few values, as SQL conditions.
@@ -384,11 +371,5 @@ mod tests {
             immutable_uri(Path::new("//h/t")),
             "file:////h/t?immutable=1"
         );
-    }
-
-    #[test]
-    fn versions() {
-        assert!(is_version("0.2.0") && is_version("1.10.3-rc.1"));
-        assert!(!is_version("0.2") && !is_version("0.2.0\n") && !is_version("a.b.c"));
     }
 }

@@ -20,14 +20,16 @@
 //! ```
 
 use crate::error::{Error, Result};
+use crate::table::format::{Format, TABLE};
 use crate::table::hash::{content_sha256, file_sha256};
 use crate::table::header::{Header, HEADER_LEN};
-use crate::table::manifest::{counts, Manifest, FORMAT};
+use crate::table::manifest::{counts, FileInfo, Manifest, FORMAT};
 use crate::table::pages::locate_damage;
 use crate::table::reader::{read_error, table_params};
 use crate::table::schema::PAGE_SIZE;
-use crate::table::schema_check::trees;
-use crate::table::validate::{integrity, open_checked};
+use crate::table::schema_check::trees_in;
+use crate::table::validate::{integrity, open_checked_as};
+use rusqlite::Connection;
 use std::io::Read;
 use std::path::Path;
 
@@ -42,7 +44,8 @@ pub struct Check {
     pub detail: String,
 }
 
-fn check(name: &str, want: impl std::fmt::Display, got: impl std::fmt::Display) -> Check {
+/// A check that `got` (from the file) equals `want` (from the manifest).
+pub fn check(name: &str, want: impl std::fmt::Display, got: impl std::fmt::Display) -> Check {
     let (w, g) = (want.to_string(), got.to_string());
     Check {
         name: name.into(),
@@ -55,7 +58,8 @@ fn check(name: &str, want: impl std::fmt::Display, got: impl std::fmt::Display) 
     }
 }
 
-fn outcome(name: &str, ok: bool, detail: String) -> Check {
+/// A check with its outcome given.
+pub fn outcome(name: &str, ok: bool, detail: String) -> Check {
     Check {
         name: name.into(),
         ok,
@@ -65,101 +69,35 @@ fn outcome(name: &str, ok: bool, detail: String) -> Check {
 
 /// The names of the checks of counts.
 fn is_count(name: &str) -> bool {
-    ["classes", "pairs", "els classes", "els classes over Q"].contains(&name)
+    ROW_COUNTS.contains(&name)
+        || ["els classes", "els classes over Q"].contains(&name)
         || name.starts_with("signature ")
         || name.starts_with("galois ")
+        || name.starts_with("selmer rank ")
+        || name == "two-torsion ranks"
 }
+
+/// The names of the checks of row counts (tables' and the curve dataset's).
+const ROW_COUNTS: [&str; 4] = ["classes", "pairs", "curves", "elements"];
 
 /// Check a table against a manifest (see the module doc). A file that is damaged or not a
 /// table yields failed checks; a missing file, a directory or another kind of non-regular
 /// file is an error.
 pub fn verify(db: &Path, m: &Manifest) -> Result<Vec<Check>> {
-    let shown = db.display();
-    let meta = match std::fs::metadata(db) {
-        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
-            return Err(Error::Io(format!(
-                "no table at {shown}: the file does not exist; check the path"
-            )))
-        }
-        Err(e) => return Err(Error::Io(format!("cannot read {shown}: {e}"))),
-        Ok(meta) => meta,
+    let format = (m.format != FORMAT).then_some(m.format.as_str());
+    let (mut out, conn) = verify_file(db, &TABLE, &m.file, m.versions.schema, format)?;
+    let Some(conn) = conn else {
+        return Ok(out);
     };
-    if !meta.is_file() {
-        return Err(Error::Io(format!(
-            "{shown} is not a regular file (a directory, device, socket or pipe), so not a table"
-        )));
-    }
-    let size = meta.len();
-    let larger = size > m.file.bytes;
-    let skipped = |what: &str| {
-        format!(
-            "{what}: the file has {size} bytes, more than the manifest's {}",
-            m.file.bytes
-        )
+    let got = (|| -> Result<_> {
+        Ok((
+            (table_params(&conn)?, counts(&conn)?),
+            content_sha256(&conn)?,
+        ))
+    })();
+    let Some((params, counts)) = content_check(&mut out, &m.content_sha256, got) else {
+        return Ok(out);
     };
-    let mut out = vec![check("file size", m.file.bytes, size)];
-    out.push(match (larger, file_sha256(db)) {
-        (true, _) => outcome("file sha256", false, skipped("not computed")),
-        (false, Ok(h)) => check("file sha256", &m.file.sha256, h),
-        (false, Err(e)) => outcome("file sha256", false, e.to_string()),
-    });
-    if let Some(c) = side_files(db) {
-        out.push(c);
-    }
-    if m.format != FORMAT {
-        out.push(outcome(
-            "manifest format",
-            false,
-            format!("unknown format {}", m.format),
-        ));
-    }
-    out.push(match header_version(db) {
-        Some(v) => check("schema version", m.versions.schema, v),
-        None => outcome(
-            "schema version",
-            false,
-            "the file has no SQLite header".into(),
-        ),
-    });
-    let conn = match open_checked(db) {
-        Ok(conn) => conn,
-        Err((_, e)) => {
-            out.push(outcome("table", false, e.to_string()));
-            return Ok(out);
-        }
-    };
-    out.push(outcome(
-        "table",
-        true,
-        "header, schema and meta rows as this qorbits writes them".into(),
-    ));
-    out.push(if larger {
-        outcome("integrity", false, skipped("not run"))
-    } else {
-        // Our walk names the page where SQLite's check may stop at an unreadable record;
-        // SQLite's check also compares every index with its table.
-        let walked = walk(db, &conn);
-        match (walked, integrity(&conn)) {
-            (Some(w), _) => outcome("integrity", false, w),
-            (None, Ok(msgs)) if msgs.is_empty() => outcome(
-                "integrity",
-                true,
-                "every page, record, index entry and NOT NULL column sound".into(),
-            ),
-            (None, Ok(msgs)) => outcome("integrity", false, damage(&msgs)),
-            (None, Err(e)) => outcome("integrity", false, read_error(&conn, e).to_string()),
-        }
-    });
-    let got =
-        (|| -> Result<_> { Ok((table_params(&conn)?, counts(&conn)?, content_sha256(&conn)?)) })();
-    let (params, counts, content) = match got {
-        Ok(g) => g,
-        Err(e) => {
-            out.push(outcome("content sha256", false, e.to_string()));
-            return Ok(out);
-        }
-    };
-    out.push(check("content sha256", &m.content_sha256, content));
     out.push(check("height", m.parameters.height, params.height));
     out.push(check(
         "include_reducible",
@@ -185,8 +123,118 @@ pub fn verify(db: &Path, m: &Manifest) -> Result<Vec<Check>> {
     Ok(out)
 }
 
+/// Pushes the check of the content hash of an opened file: `got` is what the format reads
+/// (parameters, counts) with the hash it computed, or why it could not read them. Returns
+/// what was read, `None` when reading failed.
+pub fn content_check<T>(out: &mut Vec<Check>, want: &str, got: Result<(T, String)>) -> Option<T> {
+    match got {
+        Ok((t, hash)) => {
+            out.push(check("content sha256", want, hash));
+            Some(t)
+        }
+        Err(e) => {
+            out.push(outcome("content sha256", false, e.to_string()));
+            None
+        }
+    }
+}
+
+/// The checks every format shares, in order: the file's size and SHA-256 against `file`,
+/// files beside it, the manifest's format (`unknown_format` names one this build does not
+/// write), the schema version in the header against `schema`, the file opened as `f`
+/// (`table::validate`) and the integrity check with the page walk. Returns the checks and
+/// the connection when the file could be opened, for the format's own checks of content and
+/// counts.
+pub fn verify_file(
+    db: &Path,
+    f: &'static Format,
+    file: &FileInfo,
+    schema: u32,
+    unknown_format: Option<&str>,
+) -> Result<(Vec<Check>, Option<Connection>)> {
+    let shown = db.display();
+    let meta = match std::fs::metadata(db) {
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+            return Err(Error::Io(format!(
+                "no {} at {shown}: the file does not exist; check the path",
+                f.noun
+            )))
+        }
+        Err(e) => return Err(Error::Io(format!("cannot read {shown}: {e}"))),
+        Ok(meta) => meta,
+    };
+    if !meta.is_file() {
+        return Err(Error::Io(format!(
+            "{shown} is not a regular file (a directory, device, socket or pipe), so not a {}",
+            f.noun
+        )));
+    }
+    let size = meta.len();
+    let larger = size > file.bytes;
+    let skipped = |what: &str| {
+        format!(
+            "{what}: the file has {size} bytes, more than the manifest's {}",
+            file.bytes
+        )
+    };
+    let mut out = vec![check("file size", file.bytes, size)];
+    out.push(match (larger, file_sha256(db)) {
+        (true, _) => outcome("file sha256", false, skipped("not computed")),
+        (false, Ok(h)) => check("file sha256", &file.sha256, h),
+        (false, Err(e)) => outcome("file sha256", false, e.to_string()),
+    });
+    if let Some(c) = side_files(db) {
+        out.push(c);
+    }
+    if let Some(name) = unknown_format {
+        out.push(outcome(
+            "manifest format",
+            false,
+            format!("unknown format {name}"),
+        ));
+    }
+    out.push(match header_version(db) {
+        Some(v) => check("schema version", schema, v),
+        None => outcome(
+            "schema version",
+            false,
+            "the file has no SQLite header".into(),
+        ),
+    });
+    let conn = match open_checked_as(f, db) {
+        Ok(conn) => conn,
+        Err((_, e)) => {
+            out.push(outcome(f.noun, false, e.to_string()));
+            return Ok((out, None));
+        }
+    };
+    out.push(outcome(
+        f.noun,
+        true,
+        "header, schema and meta rows as this qorbits writes them".into(),
+    ));
+    out.push(if larger {
+        outcome("integrity", false, skipped("not run"))
+    } else {
+        // Our walk names the page where SQLite's check may stop at an unreadable record;
+        // SQLite's check also compares every index with its table.
+        let walked = walk(f, db, &conn);
+        match (walked, integrity(&conn)) {
+            (Some(w), _) => outcome("integrity", false, w),
+            (None, Ok(msgs)) if msgs.is_empty() => outcome(
+                "integrity",
+                true,
+                "every page, record, index entry and NOT NULL column sound".into(),
+            ),
+            (None, Ok(msgs)) => outcome("integrity", false, damage(&msgs)),
+            (None, Err(e)) => outcome("integrity", false, read_error(&conn, e).to_string()),
+        }
+    });
+    Ok((out, Some(conn)))
+}
+
 /// The first damaged page the walk of `table::pages` finds in the file behind `conn`.
-fn walk(db: &Path, conn: &rusqlite::Connection) -> Option<String> {
+fn walk(f: &'static Format, db: &Path, conn: &Connection) -> Option<String> {
     use std::os::unix::fs::FileExt;
     let file = match std::fs::File::open(db) {
         Ok(f) => f,
@@ -197,7 +245,7 @@ fn walk(db: &Path, conn: &rusqlite::Connection) -> Option<String> {
         return Some("the file has no SQLite header".into());
     }
     let h = Header::parse(&b)?;
-    let trees = match trees(conn) {
+    let trees = match trees_in(f, conn) {
         Ok(t) => t,
         Err(e) => return Some(read_error(conn, e).to_string()),
     };
@@ -281,7 +329,10 @@ pub fn diagnosis(checks: &[Check]) -> Option<String> {
             c.detail
         ));
     }
-    if let Some(c) = get("table") {
+    if let Some(c) = failed
+        .iter()
+        .find(|c| c.name == TABLE.noun || c.name.ends_with("dataset"))
+    {
         return Some(format!("the file is refused: {}", c.detail));
     }
     if let Some(c) = get("side files") {
@@ -294,7 +345,7 @@ pub fn diagnosis(checks: &[Check]) -> Option<String> {
         return Some(format!("the rows cannot be read: {}", c.detail));
     }
     let said = |c: &Check| format!("{}: {}", c.name, c.detail);
-    let params: Vec<&Check> = ["height", "include_reducible"]
+    let params: Vec<&Check> = ["height", "include_reducible", "family"]
         .into_iter()
         .filter_map(get)
         .collect();
@@ -328,7 +379,7 @@ pub fn diagnosis(checks: &[Check]) -> Option<String> {
     }
     if let Some(c) = counts
         .iter()
-        .find(|c| c.name == "classes" || c.name == "pairs")
+        .find(|c| ROW_COUNTS.contains(&c.name.as_str()))
     {
         return Some(format!(
             "row count differs ({}); the content differs too",

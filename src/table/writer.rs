@@ -31,11 +31,11 @@ use crate::arith::primes::factor_text;
 use crate::error::{Error, Result};
 use crate::form::galois::GaloisGroup;
 use crate::table::atomic::TempFile;
+use crate::table::format::{Format, TABLE};
 use crate::table::group::label;
 use crate::table::row::{ClassRow, Pair, Params, Table};
 use crate::table::schema::{
-    place_to_column, APPLICATION_ID, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_SQL,
-    SCHEMA_VERSION,
+    place_to_column, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_VERSION,
 };
 use rusqlite::{params, Connection, ErrorCode, OpenFlags};
 use std::path::{Path, PathBuf};
@@ -243,9 +243,11 @@ impl TableWriter {
     }
 }
 
-/// Creates the database in the (empty) file `tmp`: settings, schema, `meta`, and an open
-/// transaction.
-fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
+/// Creates a database of format `f` in the (empty) file `tmp`: the fixed settings (page
+/// size, UTF-8, no auto-vacuum, no journal), an open transaction, the application id, the
+/// schema version and the schema. Every qorbits file starts here, so files of every format
+/// share the settings the header check expects.
+pub fn new_database(tmp: &Path, f: &Format) -> rusqlite::Result<Connection> {
     let conn = Connection::open_with_flags(
         tmp,
         OpenFlags::SQLITE_OPEN_READ_WRITE | OpenFlags::SQLITE_OPEN_NO_MUTEX,
@@ -262,9 +264,16 @@ fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
     conn.pragma_update(None, "cache_size", -65536)?;
     conn.pragma_update(None, "temp_store", "FILE")?;
     conn.execute_batch("BEGIN")?;
-    conn.pragma_update(None, "application_id", APPLICATION_ID)?;
-    conn.pragma_update(None, "user_version", SCHEMA_VERSION)?;
-    conn.execute_batch(SCHEMA_SQL)?;
+    conn.pragma_update(None, "application_id", f.application_id)?;
+    conn.pragma_update(None, "user_version", f.schema_version)?;
+    conn.execute_batch(f.schema_sql)?;
+    Ok(conn)
+}
+
+/// Creates the table in the (empty) file `tmp`: settings, schema, `meta`, and an open
+/// transaction.
+fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
+    let conn = new_database(tmp, &TABLE)?;
     {
         let mut meta = conn.prepare("INSERT INTO meta (key, value) VALUES (?1, ?2)")?;
         let include = if params.include_reducible { "1" } else { "0" };
@@ -283,7 +292,7 @@ fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
 }
 
 /// A one-line error for a failed write.
-fn write_error(path: &Path, e: rusqlite::Error) -> Error {
+pub fn write_error(path: &Path, e: rusqlite::Error) -> Error {
     match e.sqlite_error_code() {
         Some(ErrorCode::ConstraintViolation) => Error::Input(format!(
             "cannot write {}: the rows break a key of the table ({e}); labels must be unique",

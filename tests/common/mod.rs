@@ -2,6 +2,7 @@
 //! matrices of GL2(Z).
 #![allow(dead_code)]
 
+pub mod curves;
 pub mod fixture;
 pub mod hostile;
 pub mod mutate;

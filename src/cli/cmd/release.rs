@@ -228,14 +228,14 @@ pub fn run(a: Args) -> Result<(), Error> {
         manifest_json(&m).as_bytes(),
         true,
     )?;
-    let citation = Citation {
-        params: m.parameters,
-        hash: m.content_sha256.clone(),
-        classes: m.counts.classes,
+    let citation = Citation::of_table(
+        m.parameters,
+        m.content_sha256.clone(),
+        m.counts.classes,
         year,
-        url: a.url.clone(),
-        file: Path::new(&m.file.name),
-    };
+        a.url.clone(),
+        PathBuf::from(&m.file.name),
+    );
     write_atomic(&a.out.join("CITATION.cff"), citation.cff().as_bytes(), true)?;
     write_atomic(
         &a.out.join("counts.svg"),

@@ -7,7 +7,12 @@ use crate::progress::Bar;
 use crate::render::{aligned, csv};
 use qorbits::arith::parse::parse_height;
 use qorbits::error::Error;
-use qorbits::selmer::{estimated_seconds, selmer_stats, SelmerBin, SelmerStats};
+use qorbits::selmer::dataset::{check_y, dataset_targets, write_dataset};
+use qorbits::selmer::{
+    estimated_seconds, family_selmer, family_statement, selmer_stats, stats_from_groups, SelmerBin,
+    SelmerStats,
+};
+use qorbits::table::atomic::check_target;
 use qorbits::table::json;
 use serde_json::Value;
 
@@ -15,7 +20,7 @@ use serde_json::Value;
 /// max(4|A|^3, 27B^2) below Y (non-singular, minimal, x^3 + A x + B without a rational root).
 #[derive(clap::Args, Debug)]
 #[command(
-    after_help = "Examples:\n  qorbits selmer-stats --height 1e4\n  qorbits selmer-stats --height 1e5 --json --curves\n  qorbits selmer-stats --height 1e5 --plot avg.svg"
+    after_help = "Examples:\n  qorbits selmer-stats --height 1e4\n  qorbits selmer-stats --height 1e5 --json --curves\n  qorbits selmer-stats --height 1e5 --plot avg.svg\n  qorbits selmer-stats --height 1e5 --out curves.sqlite"
 )]
 pub struct Args {
     /// The height bound Y (e.g. 1e4).
@@ -41,18 +46,13 @@ pub struct Args {
     /// Also draw the average against Y, with the published limit 3, into this SVG file.
     #[arg(long, value_name = "FILE")]
     plot: Option<std::path::PathBuf>,
-    /// Replace an existing --plot file.
+    /// Also write every curve and 2-Selmer element into this SQLite file, with its
+    /// manifest beside it (curves.sqlite -> curves.manifest.json; docs/output.md).
+    #[arg(long, value_name = "FILE")]
+    out: Option<std::path::PathBuf>,
+    /// Replace existing --plot and --out files (and the manifest of --out).
     #[arg(long)]
     force: bool,
-}
-
-/// The statement of the family for a height bound.
-pub fn family(y: i128) -> String {
-    format!(
-        "all integer pairs (A, B) with max(4|A|^3, 27B^2) < {y}, 4A^3 + 27B^2 != 0, no prime p \
-         with p^4 | A and p^6 | B, and x^3 + Ax + B without a rational root; each pair is one \
-         curve y^2 = x^3 + Ax + B"
-    )
 }
 
 fn average(b: &SelmerBin) -> Value {
@@ -83,8 +83,33 @@ pub fn run(a: Args) -> Result<(), Error> {
         a.allow_long,
         a.quiet,
     )?;
+    // Every output is checked before any work, so a long run never ends refused.
+    if let Some(file) = &a.out {
+        check_y(y)?;
+        dataset_targets(file, a.force)?;
+    }
+    if let Some(file) = &a.plot {
+        check_target(file, a.force)?;
+    }
     let bar = Bar::new(a.quiet);
-    let st = a.jobs.run(|| selmer_stats(y, &bar))?;
+    let st = match &a.out {
+        None => a.jobs.run(|| selmer_stats(y, &bar))?,
+        Some(file) => {
+            let groups = a.jobs.run(|| family_selmer(y, &bar))?;
+            bar.finish();
+            let m = write_dataset(file, y, &groups, a.force)?;
+            if !a.quiet {
+                eprintln!(
+                    "qorbits: wrote {} ({} curves, {} elements), content sha256 {}",
+                    file.display(),
+                    m.counts.curves,
+                    m.counts.elements,
+                    m.content_sha256
+                );
+            }
+            stats_from_groups(y, &groups)
+        }
+    };
     bar.finish();
     if let Some(file) = &a.plot {
         let svg = crate::plot::stats_selmer_svg(&st)?;
@@ -93,7 +118,7 @@ pub fn run(a: Args) -> Result<(), Error> {
     emit(&if a.json {
         let mut v = json::object(vec![
             ("height", json::int(&y.into())),
-            ("family", Value::from(family(y))),
+            ("family", Value::from(family_statement(y))),
             ("curve_count", Value::from(st.all.curves)),
             ("selmer_total", Value::from(st.all.total)),
             ("average", average(&st.all)),
@@ -175,7 +200,7 @@ fn csv_report(st: &SelmerStats, curves: bool) -> String {
 }
 
 fn text(st: &SelmerStats, curves: bool) -> String {
-    let mut out = format!("family: {}\n", family(st.height));
+    let mut out = format!("family: {}\n", family_statement(st.height));
     if st.all.curves == 0 {
         out += "no curve of the family lies below this height\n";
         return out;
