@@ -1,5 +1,6 @@
 //! The `qorbits` command line: parses the arguments, dispatches to the subcommand, and turns
-//! every error into one line on stderr with exit status 2.
+//! every error into one line on stderr with exit status 2. A file-size limit (`ulimit -f`)
+//! shows as a failed write (EFBIG) reported in that line: SIGXFSZ is ignored from the start.
 
 mod cmd;
 mod out;
@@ -94,6 +95,10 @@ fn usage_error(e: clap::Error) -> ExitCode {
 }
 
 fn main() -> ExitCode {
+    // SAFETY: sets the disposition of one signal to "ignore" before any other thread runs.
+    unsafe {
+        libc::signal(libc::SIGXFSZ, libc::SIG_IGN);
+    }
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => return usage_error(e),
@@ -104,6 +109,15 @@ fn main() -> ExitCode {
             eprintln!(
                 "qorbits: {} already exists; pass --force to overwrite it",
                 p.display()
+            );
+            ExitCode::from(2)
+        }
+        Err(Error::NoSpace(mut n)) => {
+            // The partial files are gone by now: say what a retry has.
+            qorbits::table::space::measure_again(&mut n);
+            eprintln!(
+                "qorbits: {}",
+                n.message("rerun with --resume once there is room")
             );
             ExitCode::from(2)
         }

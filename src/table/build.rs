@@ -5,37 +5,43 @@
 //!
 //! A build keeps its runs in a work directory beside the table (`.NAME.work/`), marked as
 //! ours and holding the plan. Killed at any point and restarted with `resume`, it keeps the
-//! runs that are whole and ends with the same bytes; without `resume` leftovers are removed.
-//! The table appears at its name only when it is complete and its manifest stands beside
-//! it. A shard ([`crate::table::shard`]) is the same work for a subset of the chunks.
+//! runs that are whole and ends with the same bytes (a table already complete is verified
+//! and kept); without `resume` leftovers are removed. The table appears at its name only
+//! when it is complete and its manifest stands beside it ([`crate::table::commit`]). A
+//! write that finds no room fails with [`Error::NoSpace`]: the partial files are removed,
+//! the whole runs kept for `resume` and named in the error. A shard
+//! ([`crate::table::shard`]) is the same work for a subset of the chunks.
 
 use crate::enumerate::bounds::Bounds;
-use crate::error::{Error, Result};
+use crate::error::{bytes_text, Error, Kept, Result};
 use crate::form::Form;
 use crate::progress::Progress;
-use crate::table::atomic::write_atomic;
+use crate::table::atomic::{check_target, write_atomic};
 use crate::table::classify::{classify, Annotation};
+pub(crate) use crate::table::commit::MARKER;
+use crate::table::commit::{
+    finish_interrupted, fresh_work_dir, merge_to, remove_stale_temps, remove_work_dir,
+};
 use crate::table::hash::hex;
-use crate::table::manifest::{default_manifest_path, manifest_named, write_manifest, Manifest};
-use crate::table::merge::{merge_into, Run};
+use crate::table::manifest::{default_manifest_path, read_manifest, verify, Manifest};
+use crate::table::merge::Run;
 use crate::table::plan::{plan, Plan, MODEL};
 use crate::table::row::{ClassRow, Params};
 use crate::table::runs::{check_run, write_run};
-use crate::table::writer::TableWriter;
+pub use crate::table::space::free_bytes;
+use crate::table::space::with_need;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 use std::path::{Path, PathBuf};
-
-/// The marker file of a work or shard directory.
-pub(crate) const MARKER: &str = "qorbits-work";
 
 /// How to build.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
 pub struct BuildOptions {
     /// Replace an existing table and manifest.
     pub replace: bool,
-    /// Keep the whole runs of an interrupted build with the same parameters.
+    /// Keep the whole runs of an interrupted build with the same parameters; a table that
+    /// is already complete (it verifies against its manifest) is kept as it is.
     pub resume: bool,
     /// Do not check the free disk against the estimate.
     pub skip_disk_check: bool,
@@ -56,6 +62,9 @@ pub struct BuildSummary {
     pub chunks: usize,
     /// Candidates examined by the loops.
     pub candidates: u64,
+    /// The table was already complete: a resumed build found it in place and verified
+    /// (perhaps after finishing a commit a kill had interrupted); nothing was computed.
+    pub complete: bool,
 }
 
 /// The SHA-256 of the plan (its JSON), which names one build among all others.
@@ -67,37 +76,6 @@ pub fn plan_hash(p: &Plan) -> String {
 
 pub(crate) fn run_file(dir: &Path, chunk: usize) -> PathBuf {
     dir.join(format!("chunk-{chunk:06}.run"))
-}
-
-/// Makes `dir` a fresh work directory, removing the leftovers of an earlier one (only a
-/// directory that carries our marker).
-pub(crate) fn fresh_work_dir(dir: &Path) -> Result<()> {
-    if std::fs::symlink_metadata(dir).is_ok() {
-        let link = std::fs::symlink_metadata(dir).is_ok_and(|m| m.file_type().is_symlink());
-        if link || !dir.join(MARKER).is_file() {
-            return Err(Error::Io(format!(
-                "{} exists and is not a qorbits work directory; remove it or choose another output",
-                dir.display()
-            )));
-        }
-        std::fs::remove_dir_all(dir).map_err(|e| {
-            Error::Io(format!(
-                "cannot remove the leftovers {}: {e}",
-                dir.display()
-            ))
-        })?;
-    }
-    std::fs::create_dir(dir).map_err(|e| {
-        Error::Io(format!(
-            "cannot create the work directory {}: {e}",
-            dir.display()
-        ))
-    })?;
-    write_atomic(
-        &dir.join(MARKER),
-        b"a qorbits build keeps its runs here\n",
-        true,
-    )
 }
 
 /// The plan of the work directory, when it is one for these parameters and this builder.
@@ -115,16 +93,6 @@ fn saved_plan(dir: &Path, params: &Params) -> Option<Plan> {
 struct SavedPlan {
     builder: String,
     plan: Plan,
-}
-
-/// Free bytes on the file system of `dir`, when the system says.
-pub fn free_bytes(dir: &Path) -> Option<u64> {
-    use std::os::unix::ffi::OsStrExt;
-    let c = std::ffi::CString::new(dir.as_os_str().as_bytes()).ok()?;
-    let mut s: libc::statvfs = unsafe { std::mem::zeroed() };
-    // SAFETY: `c` is a valid C string and `s` a valid out-pointer for statvfs.
-    let rc = unsafe { libc::statvfs(c.as_ptr(), &mut s) };
-    (rc == 0).then(|| s.f_bavail as u64 * s.f_frsize as u64)
 }
 
 /// The classified rows of one chunk of the plan.
@@ -182,49 +150,8 @@ pub(crate) fn compute_runs(
     Ok(done.into_iter().filter(|d| *d).count())
 }
 
-/// Merges runs into the table at `out` and its manifest, the manifest written first (so a
-/// table never stands at its name without it).
-pub(crate) fn merge_to(
-    runs: Vec<Run>,
-    params: &Params,
-    work: &Path,
-    out: &Path,
-    replace: bool,
-    progress: &dyn Progress,
-) -> Result<(Manifest, PathBuf)> {
-    let mut w = TableWriter::create(out, params, replace)?;
-    progress.start("merging", 0);
-    merge_into(runs, params, work, &mut w, progress)?;
-    let name = out
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    let manifest_path = default_manifest_path(out);
-    let mut manifest = None;
-    w.finish_with(|tmp| {
-        let m = manifest_named(tmp, &name)?;
-        write_manifest(&manifest_path, &m, replace)?;
-        manifest = Some(m);
-        Ok(())
-    })?;
-    Ok((manifest.expect("written before the rename"), manifest_path))
-}
-
-/// Builds the table of `params` at `out` with its manifest beside it, on the current rayon
-/// pool. Existing files are refused ([`Error::Exists`]) unless `replace`, and a file system
-/// with less free space than the estimate is refused, both before any work is done.
-pub fn build_table(
-    params: &Params,
-    out: &Path,
-    opts: &BuildOptions,
-    progress: &dyn Progress,
-) -> Result<BuildSummary> {
-    let manifest_path = default_manifest_path(out);
-    for target in [out, manifest_path.as_path()] {
-        // Neither output may be a directory, a link or (unless replacing) a file:
-        // checked before any work, so a build never stops with its manifest refused.
-        crate::table::atomic::check_target(target, opts.replace)?;
-    }
+/// The directory and file name of `out`, and its work directory `.NAME.work` beside it.
+fn places(out: &Path) -> Result<(PathBuf, PathBuf)> {
     let name = out.file_name().ok_or_else(|| {
         Error::Input(format!(
             "{} is not a file name; give a path like dir/table.sqlite",
@@ -235,60 +162,156 @@ pub fn build_table(
         Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
         _ => PathBuf::from("."),
     };
-    if !dir.is_dir() {
-        return Err(Error::Io(format!(
-            "cannot write {}: directory {} does not exist; create it first",
-            out.display(),
-            dir.display()
-        )));
-    }
     let work = dir.join(format!(".{}.work", name.to_string_lossy()));
+    Ok((dir, work))
+}
+
+/// The summary of a table already complete at `out` — both files regular, the manifest's
+/// parameters these, every check of `verify` passed — after removing the leftovers of the
+/// build that wrote it; `None` otherwise.
+fn already_built(params: &Params, out: &Path, work: &Path) -> Result<Option<BuildSummary>> {
+    let manifest_path = default_manifest_path(out);
+    let plain = |p: &Path| std::fs::symlink_metadata(p).is_ok_and(|m| m.is_file());
+    if !plain(out) || !plain(&manifest_path) {
+        return Ok(None);
+    }
+    let Ok(manifest) = read_manifest(&manifest_path) else {
+        return Ok(None);
+    };
+    if manifest.parameters != *params
+        || !verify(out, &manifest).is_ok_and(|c| c.iter().all(|c| c.ok))
+    {
+        return Ok(None);
+    }
+    remove_work_dir(work);
+    remove_stale_temps(out);
+    Ok(Some(BuildSummary {
+        table: out.to_path_buf(),
+        manifest_path,
+        manifest,
+        computed: 0,
+        chunks: 0,
+        candidates: 0,
+        complete: true,
+    }))
+}
+
+/// After a write found no room: the need of the build and, when whole runs are left, the
+/// work directory kept for resuming (intermediate runs and temporary files removed);
+/// without whole runs the work directory is removed.
+fn keep_for_resume(e: Error, work: &Path, need: Option<f64>) -> Error {
+    let mut e = match need {
+        Some(n) => with_need(e, "the build (table and runs)", n),
+        None => e,
+    };
+    let Error::NoSpace(n) = &mut e else {
+        return e;
+    };
+    let (mut runs, mut bytes) = (0usize, 0u64);
+    for entry in std::fs::read_dir(work).into_iter().flatten().flatten() {
+        let name = entry.file_name().to_string_lossy().into_owned();
+        if name.starts_with("chunk-") && name.ends_with(".run") {
+            runs += 1;
+            bytes += entry.metadata().map_or(0, |m| m.len());
+        } else if name != MARKER && name != "plan.json" {
+            let _ = std::fs::remove_file(entry.path());
+        }
+    }
+    if runs == 0 {
+        remove_work_dir(work);
+    } else {
+        n.kept = Some(Kept {
+            dir: work.to_path_buf(),
+            runs,
+            bytes,
+        });
+    }
+    e
+}
+
+/// Builds the table of `params` at `out` with its manifest beside it, on the current rayon
+/// pool. Existing files are refused ([`Error::Exists`]) unless `replace` (or, with
+/// `resume`, unless they are the complete table of `params`), and a file system with less
+/// free space than the estimate is refused, both before any work is done. A write that
+/// finds no room fails with [`Error::NoSpace`], keeping the whole runs for `resume`.
+pub fn build_table(
+    params: &Params,
+    out: &Path,
+    opts: &BuildOptions,
+    progress: &dyn Progress,
+) -> Result<BuildSummary> {
+    let (dir, work) = places(out)?;
+    // A commit that a kill interrupted is completed first: its table is whole.
+    finish_interrupted(out)?;
+    if opts.resume && !opts.replace {
+        if let Some(s) = already_built(params, out, &work)? {
+            return Ok(s);
+        }
+    }
+    let manifest_path = default_manifest_path(out);
+    for target in [out, manifest_path.as_path()] {
+        // Neither output may be a directory, a link or (unless replacing) a file:
+        // checked before any work, so a build never stops with its manifest refused.
+        check_target(target, opts.replace)?;
+    }
     let resumed = if opts.resume {
         saved_plan(&work, params)
     } else {
         None
     };
-    let p = match resumed.clone() {
-        Some(p) => p,
-        None => {
-            let p = plan(params, 1, progress)?;
-            if !opts.skip_disk_check {
-                let need = p.estimate(None, 1, &MODEL).disk_bytes;
-                if let Some(free) = free_bytes(&dir) {
-                    if (free as f64) < need {
-                        return Err(Error::Io(format!(
-                            "not enough free disk in {}: the build needs about {:.1} GB (table and runs), {:.1} GB are free",
-                            dir.display(),
-                            need / 1e9,
-                            free as f64 / 1e9
-                        )));
+    let mut need = None;
+    let result = (|| {
+        let p = match resumed.clone() {
+            Some(p) => p,
+            None => {
+                let p = plan(params, 1, progress)?;
+                let want = p.estimate(None, 1, &MODEL).disk_bytes;
+                if !opts.skip_disk_check {
+                    if let Some(free) = free_bytes(&dir) {
+                        if (free as f64) < want {
+                            return Err(Error::Io(format!(
+                                "not enough free disk in {}: the build needs about {} (table and runs), {} are free",
+                                dir.display(),
+                                bytes_text(want),
+                                bytes_text(free as f64)
+                            )));
+                        }
                     }
                 }
+                need = Some(want);
+                fresh_work_dir(&work)?;
+                let saved = SavedPlan {
+                    builder: env!("CARGO_PKG_VERSION").into(),
+                    plan: p.clone(),
+                };
+                write_atomic(
+                    &work.join("plan.json"),
+                    &serde_json::to_vec(&saved).expect("plans serialise"),
+                    true,
+                )?;
+                p
             }
-            fresh_work_dir(&work)?;
-            let saved = SavedPlan {
-                builder: env!("CARGO_PKG_VERSION").into(),
-                plan: p.clone(),
-            };
-            write_atomic(
-                &work.join("plan.json"),
-                &serde_json::to_vec(&saved).expect("plans serialise"),
-                true,
-            )?;
-            p
-        }
+        };
+        need = Some(p.estimate(None, 1, &MODEL).disk_bytes);
+        let all: Vec<usize> = (0..p.chunks.len()).collect();
+        let computed = compute_runs(&p, &all, &work, resumed.is_some(), progress)?;
+        let runs = all
+            .iter()
+            .map(|&k| Run {
+                chunk: k as u32,
+                path: run_file(&work, k),
+            })
+            .collect();
+        let (manifest, manifest_path) =
+            merge_to(runs, params, &work, out, opts.replace, false, progress)?;
+        Ok((p, computed, manifest, manifest_path))
+    })();
+    let (p, computed, manifest, manifest_path) = match result {
+        Ok(r) => r,
+        Err(e @ Error::NoSpace(_)) => return Err(keep_for_resume(e, &work, need)),
+        Err(e) => return Err(e),
     };
-    let all: Vec<usize> = (0..p.chunks.len()).collect();
-    let computed = compute_runs(&p, &all, &work, resumed.is_some(), progress)?;
-    let runs = all
-        .iter()
-        .map(|&k| Run {
-            chunk: k as u32,
-            path: run_file(&work, k),
-        })
-        .collect();
-    let (manifest, manifest_path) = merge_to(runs, params, &work, out, opts.replace, progress)?;
-    let _ = std::fs::remove_dir_all(&work);
+    remove_work_dir(&work);
     Ok(BuildSummary {
         table: out.to_path_buf(),
         manifest_path,
@@ -296,5 +319,6 @@ pub fn build_table(
         computed,
         chunks: p.chunks.len(),
         candidates: p.candidates(),
+        complete: false,
     })
 }

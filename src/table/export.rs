@@ -19,6 +19,7 @@ use crate::progress::Progress;
 use crate::table::reader::{for_each_class, read_error, StoredRow, CLASS_COLUMNS};
 use crate::table::row::ClassRow;
 use crate::table::schema::place_to_column;
+use crate::table::space::{cause_of, no_space};
 use rusqlite::Connection;
 use serde_json::{Map, Value};
 use std::io::Write;
@@ -132,6 +133,38 @@ pub fn export_sql(filter: Option<&str>) -> String {
     }
 }
 
+/// The name a failed write of an export gives as its file ([`Error::NoSpace`]): the caller
+/// knows the real one and puts it in ([`crate::table::space::retarget`]).
+pub const OUTPUT: &str = "the export output";
+
+/// The error for a failed write of an export: [`Error::NoSpace`] (naming [`OUTPUT`]) when
+/// there was no room, else a one-line [`Error::Io`].
+pub fn export_error(e: std::io::Error) -> Error {
+    match cause_of(&e) {
+        Some(c) => no_space(std::path::Path::new(OUTPUT), c),
+        None => Error::Io(format!("cannot write the export: {e}")),
+    }
+}
+
+/// The bytes an export of every class of the table writes, by the plan model
+/// ([`crate::table::plan::export_bytes`]).
+pub fn export_need(conn: &Connection, format: ExportFormat, gzip: bool) -> Result<f64> {
+    let classes = class_total(conn)?;
+    Ok(crate::table::plan::export_bytes(
+        classes.max(0) as u64,
+        format == ExportFormat::Jsonl,
+        gzip,
+    ))
+}
+
+/// The classes of the table, by the counts of `pairs`.
+fn class_total(conn: &Connection) -> Result<i64> {
+    conn.query_row("SELECT coalesce(sum(classes), 0) FROM pairs", [], |r| {
+        r.get(0)
+    })
+    .map_err(|e| read_error(conn, e))
+}
+
 /// Writes the classes of the table (those where `filter` holds, if given) to `out` in
 /// `format`, streaming; `progress` hears of every class. Returns the number of classes.
 pub fn export(
@@ -156,16 +189,18 @@ pub fn export(
         None => read_error(conn, e),
     })?;
     let total: i64 = if filter.is_none() {
-        conn.query_row("SELECT coalesce(sum(classes), 0) FROM pairs", [], |r| {
-            r.get(0)
-        })
-        .map_err(|e| read_error(conn, e))?
+        class_total(conn)?
     } else {
         0
     };
     progress.start("exporting the classes", total.max(0) as u64);
-    let io = |e: std::io::Error| Error::Io(format!("cannot write the export: {e}"));
-    let csv_io = |e: csv::Error| Error::Io(format!("cannot write the export: {e}"));
+    let io = export_error;
+    let csv_io = |e: csv::Error| match e.kind() {
+        csv::ErrorKind::Io(io) if cause_of(io).is_some() => {
+            no_space(std::path::Path::new(OUTPUT), cause_of(io).expect("a cause"))
+        }
+        _ => Error::Io(format!("cannot write the export: {e}")),
+    };
     let mut n = 0u64;
     match format {
         ExportFormat::Csv => {
@@ -181,10 +216,13 @@ pub fn export(
         }
         ExportFormat::Jsonl => {
             let mut w = std::io::BufWriter::new(&mut *out);
+            let mut line = Vec::new();
             for_each_class(conn, &sql, [], |s| {
-                serde_json::to_writer(&mut w, &json_object(&s))
+                line.clear();
+                serde_json::to_writer(&mut line, &json_object(&s))
                     .map_err(|e| Error::Io(format!("cannot write the export: {e}")))?;
-                w.write_all(b"\n").map_err(io)?;
+                line.push(b'\n');
+                w.write_all(&line).map_err(io)?;
                 n += 1;
                 progress.advance(1);
                 Ok(())

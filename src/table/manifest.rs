@@ -283,7 +283,8 @@ pub fn read_manifest(path: &Path) -> Result<Manifest> {
 /// Rebuilds the table a manifest describes and checks the result against it, on the
 /// current rayon pool. The manifest is untrusted: it is validated by [`read_manifest`], and
 /// the rebuild happens in a fresh private directory under a fixed name, removed afterwards,
-/// so nothing from the manifest becomes part of a path.
+/// so nothing from the manifest becomes part of a path. A write that finds no room there
+/// fails with [`Error::NoSpace`] and leaves nothing behind.
 pub fn rebuild_and_compare(manifest: &Path, progress: &dyn Progress) -> Result<Vec<Check>> {
     let m = read_manifest(manifest)?;
     let dir = fresh_temp_dir("rebuild")?;
@@ -292,5 +293,18 @@ pub fn rebuild_and_compare(manifest: &Path, progress: &dyn Progress) -> Result<V
     let result = crate::table::build::build_table(&m.parameters, &out, &opts, progress)
         .and_then(|_| verify(&out, &m));
     let _ = std::fs::remove_dir_all(&dir);
-    result
+    result.map_err(|e| match e {
+        // The private directory is gone, runs and all: nothing is kept for resuming.
+        Error::NoSpace(mut n) => {
+            n.kept = None;
+            if let Some((_, bytes)) = n.need.take() {
+                n.need = Some((
+                    "the rebuild in the temporary directory (TMPDIR)".into(),
+                    bytes,
+                ));
+            }
+            Error::NoSpace(n)
+        }
+        e => e,
+    })
 }

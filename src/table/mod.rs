@@ -7,11 +7,14 @@
 //! number rule ([`json`]), queries by invariants ([`query`]), selections ([`select`]),
 //! lookups of any form ([`lookup`]), exports ([`export`]), counts against the asymptotic
 //! main terms ([`stats`]), and the scalable build: plan ([`plan`]), sorted runs ([`runs`]),
-//! their merge ([`merge`]), the build itself ([`build`]) and shards ([`shard`]).
+//! their merge ([`merge`]), the build itself ([`build`]) and shards ([`shard`]), the
+//! commit of a finished table and the work directories ([`commit`]), and failed writes for
+//! lack of space ([`space`]).
 
 pub mod atomic;
 pub mod build;
 pub mod classify;
+pub mod commit;
 pub mod export;
 pub mod format;
 pub mod group;
@@ -33,6 +36,7 @@ pub mod schema;
 pub mod schema_check;
 pub mod select;
 pub mod shard;
+pub mod space;
 pub mod stats;
 pub mod validate;
 pub mod verify;

@@ -39,6 +39,7 @@ use crate::form::Signature;
 use crate::table::atomic::TempFile;
 use crate::table::row::{ClassRow, Params};
 use crate::table::schema::{place_from_column, place_to_column};
+use crate::table::space::write_error;
 use sha2::{Digest, Sha256};
 use std::fs::{File, OpenOptions};
 use std::io::{BufReader, BufWriter, Read, Write};
@@ -227,7 +228,7 @@ impl RunWriter {
         let f = OpenOptions::new()
             .write(true)
             .open(tmp.path())
-            .map_err(|e| Error::Io(format!("cannot write {}: {e}", path.display())))?;
+            .map_err(|e| write_error(path, e))?;
         let mut w = RunWriter {
             tmp,
             target: path.to_path_buf(),
@@ -284,16 +285,6 @@ impl RunWriter {
         self.tmp.commit(&self.target, true)?;
         Ok(self.rows)
     }
-}
-
-fn write_error(path: &Path, e: std::io::Error) -> Error {
-    if e.raw_os_error() == Some(28) {
-        return Error::Io(format!(
-            "cannot write {}: the disk is full; free space or choose another directory",
-            path.display()
-        ));
-    }
-    Error::Io(format!("cannot write {}: {e}", path.display()))
 }
 
 /// Sorts `rows` by the row key and writes them as the run of `chunk` at `path`; returns

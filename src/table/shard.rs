@@ -6,15 +6,17 @@
 use crate::error::{Error, Result};
 use crate::progress::Progress;
 use crate::table::atomic::write_atomic;
-use crate::table::build::{
-    compute_runs, fresh_work_dir, merge_to, plan_hash, run_file, BuildSummary, MARKER,
+use crate::table::build::{compute_runs, plan_hash, run_file, BuildSummary};
+use crate::table::commit::{
+    finish_interrupted, fresh_work_dir, mark, merge_to, remove_stale_temps, MARKER,
 };
 use crate::table::hash::file_sha256;
-use crate::table::manifest::default_manifest_path;
+use crate::table::manifest::{default_manifest_path, read_manifest};
 use crate::table::merge::Run;
-use crate::table::plan::plan;
+use crate::table::plan::{merge_bytes, plan};
 use crate::table::row::Params;
 use crate::table::runs::check_run;
+use crate::table::space::with_need;
 use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
 
@@ -82,16 +84,16 @@ pub fn build_shard(
     if std::fs::symlink_metadata(dir).is_err() {
         std::fs::create_dir_all(dir)
             .map_err(|e| Error::Io(format!("cannot create {}: {e}", dir.display())))?;
-        write_atomic(
-            &dir.join(MARKER),
-            b"a qorbits shard keeps its runs here\n",
-            true,
-        )?;
-    } else if !dir.join(MARKER).is_file() {
+    }
+    let empty = std::fs::read_dir(dir).is_ok_and(|mut r| r.next().is_none());
+    if !empty && !dir.join(MARKER).is_file() {
         return Err(Error::Io(format!(
             "{} exists and is not a qorbits shard directory; choose another",
             dir.display()
         )));
+    }
+    if !dir.join(MARKER).is_file() {
+        mark(dir, b"a qorbits shard keeps its runs here\n")?;
     }
     let p = plan(params, n, progress)?;
     let mine = p.shards(n).swap_remove(k - 1);
@@ -175,10 +177,27 @@ fn verify_shard_files(dir: &Path, m: &ShardManifest) -> Result<()> {
     Ok(())
 }
 
+/// The work directory of a merge into `out`: `.NAME.merge` beside it.
+fn work_of(out: &Path) -> PathBuf {
+    let dir = match out.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    dir.join(format!(
+        ".{}.merge",
+        out.file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default()
+    ))
+}
+
 /// Checks that the shard directories form one complete build (same parameters, builder and
 /// plan; each shard index exactly once; every chunk exactly once; every file's hash) and
 /// merges them into the table at `out` and its manifest — the bytes the unsharded build
-/// writes. Errors name the shard that is missing, foreign or damaged.
+/// writes. Errors name the shard that is missing, foreign or damaged. A merge of the same
+/// shards that a kill interrupted between the manifest and the table is completed
+/// ([`finish_interrupted`]); a write that finds no room fails with
+/// [`Error::NoSpace`](crate::error::Error::NoSpace), leaving nothing at `out`.
 pub fn merge_shards(
     dirs: &[PathBuf],
     out: &Path,
@@ -186,10 +205,13 @@ pub fn merge_shards(
     progress: &dyn Progress,
 ) -> Result<BuildSummary> {
     let manifest_path = default_manifest_path(out);
+    let finished = finish_interrupted(out)?;
     for target in [out, manifest_path.as_path()] {
         // Neither output may be a directory, a link or (unless replacing) a file:
         // checked before any work, so a build never stops with its manifest refused.
-        crate::table::atomic::check_target(target, replace)?;
+        if !finished {
+            crate::table::atomic::check_target(target, replace)?;
+        }
     }
     let shards = dirs
         .iter()
@@ -263,22 +285,33 @@ pub fn merge_shards(
             })
         })
         .collect::<Result<Vec<_>>>()?;
-    let dir = match out.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let work = dir.join(format!(
-        ".{}.merge",
-        out.file_name()
-            .map(|n| n.to_string_lossy().into_owned())
-            .unwrap_or_default()
-    ));
-    fresh_work_dir(&work)?;
+    if finished {
+        // The table now in place is the one a killed merge wrote: of these shards?
+        let manifest = read_manifest(&manifest_path)?;
+        if manifest.parameters != first.parameters || manifest.versions.builder != first.builder {
+            return Err(Error::Exists(out.to_path_buf()));
+        }
+        remove_stale_temps(out);
+        crate::table::commit::remove_work_dir(&work_of(out));
+        return Ok(BuildSummary {
+            table: out.to_path_buf(),
+            manifest_path,
+            manifest,
+            computed: 0,
+            chunks: first.chunks_total,
+            candidates: 0,
+            complete: true,
+        });
+    }
+    let rows: u64 = shards.iter().flat_map(|m| &m.runs).map(|r| r.rows).sum();
+    let need = merge_bytes(rows, runs.len());
+    let work = work_of(out);
     let params = first.parameters;
     let candidates = 0;
-    let result = merge_to(runs, &params, &work, out, replace, progress);
-    let _ = std::fs::remove_dir_all(&work);
-    let (manifest, manifest_path) = result?;
+    let result = fresh_work_dir(&work)
+        .and_then(|()| merge_to(runs, &params, &work, out, replace, true, progress));
+    crate::table::commit::remove_work_dir(&work);
+    let (manifest, manifest_path) = result.map_err(|e| with_need(e, "the merge", need))?;
     Ok(BuildSummary {
         table: out.to_path_buf(),
         manifest_path,
@@ -286,5 +319,6 @@ pub fn merge_shards(
         computed: 0,
         chunks: first.chunks_total,
         candidates,
+        complete: false,
     })
 }

@@ -37,6 +37,7 @@ use crate::table::row::{ClassRow, Pair, Params, Table};
 use crate::table::schema::{
     place_to_column, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_VERSION,
 };
+use crate::table::space::{no_space, sqlite_cause};
 use rusqlite::{params, Connection, ErrorCode, OpenFlags};
 use std::path::{Path, PathBuf};
 
@@ -67,7 +68,7 @@ impl TableWriter {
     /// ([`Error::Exists`]) unless `replace`.
     pub fn create(path: &Path, params: &Params, replace: bool) -> Result<TableWriter> {
         let tmp = TempFile::create(path, replace)?;
-        let conn = open_new(tmp.path(), params).map_err(|e| write_error(path, e))?;
+        let conn = open_new(tmp.path(), params).map_err(|e| write_error(path, None, e))?;
         Ok(TableWriter {
             target: path.to_path_buf(),
             replace,
@@ -102,7 +103,8 @@ impl TableWriter {
                 )));
             }
         }
-        self.insert(pair).map_err(|e| write_error(&self.target, e))
+        self.insert(pair)
+            .map_err(|e| write_error(&self.target, Some(&self.conn), e))
     }
 
     /// Builds the indexes, commits, flushes and renames the file into place.
@@ -115,19 +117,28 @@ impl TableWriter {
     /// that a table never stands at its name without its manifest); an error from `before`
     /// leaves nothing at the target.
     pub fn finish_with(self, before: impl FnOnce(&Path) -> Result<()>) -> Result<Written> {
-        let target = self.target.clone();
+        let TableWriter {
+            target,
+            replace,
+            mut tmp,
+            conn,
+            classes,
+            pairs,
+            ..
+        } = self;
         let written = Written {
-            classes: self.classes as u64,
-            pairs: self.pairs as u64,
+            classes: classes as u64,
+            pairs: pairs as u64,
         };
-        (|| {
-            self.conn.execute_batch(INDEX_SQL)?;
-            self.conn.execute_batch("COMMIT")?;
-            self.conn.close().map_err(|(_, e)| e)
-        })()
-        .map_err(|e| write_error(&target, e))?;
-        before(self.tmp.path())?;
-        self.tmp.commit(&target, self.replace)?;
+        conn.execute_batch(INDEX_SQL)
+            .and_then(|()| conn.execute_batch("COMMIT"))
+            .map_err(|e| write_error(&target, Some(&conn), e))?;
+        conn.close()
+            .map_err(|(c, e)| write_error(&target, Some(&c), e))?;
+        // On disk before anything names it: a kill after this leaves a whole file.
+        tmp.sync(&target)?;
+        before(tmp.path())?;
+        tmp.commit(&target, replace)?;
         Ok(written)
     }
 
@@ -291,15 +302,15 @@ fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
     Ok(conn)
 }
 
-/// A one-line error for a failed write.
-pub fn write_error(path: &Path, e: rusqlite::Error) -> Error {
+/// A one-line error for a failed write ([`Error::NoSpace`] when there was no room; the
+/// connection, when given, tells SQLite's system error).
+pub fn write_error(path: &Path, conn: Option<&Connection>, e: rusqlite::Error) -> Error {
+    if let Some(cause) = sqlite_cause(conn, &e) {
+        return no_space(path, cause);
+    }
     match e.sqlite_error_code() {
         Some(ErrorCode::ConstraintViolation) => Error::Input(format!(
             "cannot write {}: the rows break a key of the table ({e}); labels must be unique",
-            path.display()
-        )),
-        Some(ErrorCode::DiskFull) => Error::Io(format!(
-            "cannot write {}: the disk is full; free space or choose another output directory",
             path.display()
         )),
         _ => Error::Io(format!("cannot write {}: {e}", path.display())),

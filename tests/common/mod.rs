@@ -1,12 +1,15 @@
 //! Shared helpers for the integration tests: a deterministic PRNG and random forms and
-//! matrices of GL2(Z).
+//! matrices of GL2(Z); in the modules, fixtures, hostile inputs, mutations, the published
+//! tier, running (and killing) the binary, and small mounted file systems.
 #![allow(dead_code)]
 
 pub mod curves;
 pub mod fixture;
 pub mod hostile;
 pub mod mutate;
+pub mod run;
 pub mod tier;
+pub mod tmpfs;
 
 use qorbits::form::{Form, Gl2};
 use rug::Integer;

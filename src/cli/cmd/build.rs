@@ -7,7 +7,7 @@ use crate::progress::Bar;
 use crate::render::count;
 use qorbits::arith::parse::parse_height;
 use qorbits::error::Error;
-use qorbits::table::build::{build_table, BuildOptions};
+use qorbits::table::build::{build_table, BuildOptions, BuildSummary};
 use qorbits::table::row::Params;
 use qorbits::table::shard::build_shard;
 use std::path::PathBuf;
@@ -64,6 +64,16 @@ fn parse_shard(s: &str) -> Result<(usize, usize), Error> {
     Ok((k, n))
 }
 
+/// The lines for a table found complete in place: what happened, then its content hash.
+pub fn report_complete(s: &BuildSummary, what: &str) {
+    line(&format!(
+        "{} {what} (it verifies against {})",
+        s.table.display(),
+        s.manifest_path.display()
+    ));
+    line(&format!("content sha256 {}", s.manifest.content_sha256));
+}
+
 pub fn run(a: Args) -> Result<(), Error> {
     let params = Params {
         height: parse_height(&a.height)?,
@@ -98,6 +108,10 @@ pub fn run(a: Args) -> Result<(), Error> {
     };
     let s = a.jobs.run(|| build_table(&params, &out, &opts, &bar))?;
     bar.finish();
+    if s.complete {
+        report_complete(&s, "is complete; nothing to resume");
+        return Ok(());
+    }
     if a.resume && s.computed < s.chunks {
         line(&format!(
             "resumed: {} of {} chunks came from the interrupted build",

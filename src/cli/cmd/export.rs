@@ -5,8 +5,9 @@ use crate::progress::Bar;
 use flate2::{Compression, GzBuilder};
 use qorbits::error::Error;
 use qorbits::table::atomic::TempFile;
-use qorbits::table::export::{export, ExportFormat};
+use qorbits::table::export::{export, export_error, export_need, ExportFormat};
 use qorbits::table::reader::open_table;
+use qorbits::table::space::{retarget, with_need};
 use std::io::Write;
 use std::path::PathBuf;
 
@@ -79,32 +80,54 @@ pub fn run(a: Args) -> Result<(), Error> {
         .as_ref()
         .map(|p| TempFile::create(p, a.force))
         .transpose()?;
-    let sink: Box<dyn Write> = match &tmp {
+    let written = write(&a, &conn, format, tmp.as_ref().map(TempFile::path));
+    let written = match (written, &a.out) {
+        // A full disk: name the file asked for and what the export needs; the temporary
+        // file goes when `tmp` is dropped.
+        (Err(e @ Error::NoSpace(_)), Some(out)) => {
+            let need = export_need(&conn, format, a.gzip)?;
+            Err(with_need(retarget(e, out), "the export", need))
+        }
+        (r, _) => r,
+    };
+    written?;
+    if let (Some(t), Some(out)) = (tmp, &a.out) {
+        t.commit(out, a.force)?;
+    }
+    Ok(())
+}
+
+/// Writes the export to the file `file` (the temporary file of --out) or standard output.
+fn write(
+    a: &Args,
+    conn: &rusqlite::Connection,
+    format: ExportFormat,
+    file: Option<&std::path::Path>,
+) -> Result<(), Error> {
+    let sink: Box<dyn Write> = match file {
         Some(t) => Box::new(std::io::BufWriter::new(
             std::fs::OpenOptions::new()
                 .write(true)
-                .open(t.path())
-                .map_err(|e| Error::Io(format!("cannot write {}: {e}", t.path().display())))?,
+                .open(t)
+                .map_err(|e| Error::Io(format!("cannot write {}: {e}", t.display())))?,
         )),
         None => Box::new(Stdout(std::io::stdout())),
     };
     let bar = Bar::new(a.quiet);
-    let io = |e: std::io::Error| Error::Io(format!("cannot write the export: {e}"));
     if a.gzip {
         // No name and no time in the header: the same table gives the same bytes.
         let mut gz = GzBuilder::new()
             .mtime(0)
             .write(sink, Compression::default());
-        export(&conn, format, a.filter.as_deref(), &mut gz, &bar)?;
-        gz.finish().and_then(|mut w| w.flush()).map_err(io)?;
+        export(conn, format, a.filter.as_deref(), &mut gz, &bar)?;
+        gz.finish()
+            .and_then(|mut w| w.flush())
+            .map_err(export_error)?;
     } else {
         let mut sink = sink;
-        export(&conn, format, a.filter.as_deref(), &mut sink, &bar)?;
-        sink.flush().map_err(io)?;
+        export(conn, format, a.filter.as_deref(), &mut sink, &bar)?;
+        sink.flush().map_err(export_error)?;
     }
     bar.finish();
-    if let (Some(t), Some(out)) = (tmp, &a.out) {
-        t.commit(out, a.force)?;
-    }
     Ok(())
 }

@@ -36,6 +36,10 @@ pub fn run(a: Args) -> Result<(), Error> {
         .jobs
         .run(|| merge_shards(&a.shards, &a.out, a.force, &bar))?;
     bar.finish();
+    if s.complete {
+        crate::cmd::build::report_complete(&s, "is in place: the interrupted merge is finished");
+        return Ok(());
+    }
     line(&format!(
         "wrote {} ({}) from {} shards",
         s.table.display(),

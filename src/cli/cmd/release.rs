@@ -9,7 +9,9 @@ use qorbits::error::Error;
 use qorbits::table::atomic::{write_atomic, TempFile};
 use qorbits::table::hash::file_sha256;
 use qorbits::table::manifest::{manifest_for, manifest_json, Manifest};
+use qorbits::table::plan::release_bytes;
 use qorbits::table::reader::open_table;
+use qorbits::table::space::{with_need, write_error};
 use qorbits::table::stats::stats_counts;
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -47,9 +49,10 @@ fn esc(s: &str) -> String {
 }
 
 fn gzip_file(db: &Path, target: &Path, force: bool) -> Result<(), Error> {
-    let io = |e: std::io::Error| Error::Io(format!("cannot write {}: {e}", target.display()));
+    let io = |e: std::io::Error| write_error(target, e);
     let tmp = TempFile::create(target, force)?;
-    let mut input = std::fs::File::open(db).map_err(io)?;
+    let mut input = std::fs::File::open(db)
+        .map_err(|e| Error::Io(format!("cannot read {}: {e}", db.display())))?;
     let file = std::fs::OpenOptions::new()
         .write(true)
         .open(tmp.path())
@@ -58,7 +61,16 @@ fn gzip_file(db: &Path, target: &Path, force: bool) -> Result<(), Error> {
     let mut gz = GzBuilder::new()
         .mtime(0)
         .write(std::io::BufWriter::new(file), Compression::best());
-    std::io::copy(&mut input, &mut gz).map_err(io)?;
+    // Read errors are the table's, write errors the target's.
+    let mut buf = vec![0u8; 1 << 16];
+    loop {
+        let n = std::io::Read::read(&mut input, &mut buf)
+            .map_err(|e| Error::Io(format!("cannot read {}: {e}", db.display())))?;
+        if n == 0 {
+            break;
+        }
+        gz.write_all(&buf[..n]).map_err(io)?;
+    }
     gz.finish().and_then(|mut w| w.flush()).map_err(io)?;
     tmp.commit(target, force)
 }
@@ -210,22 +222,55 @@ qorbits verify --db {db} --manifest {manifest}
 pub fn run(a: Args) -> Result<(), Error> {
     let conn = open_table(&a.db)?;
     let m = manifest_for(&a.db)?;
-    let ratios = stats_counts(&conn)?;
     let year = citation_year(a.year.as_deref())?;
     if let Ok(mut entries) = std::fs::read_dir(&a.out) {
         if entries.next().is_some() && !a.force {
             return Err(Error::Exists(a.out.clone()));
         }
     }
+    let created = std::fs::symlink_metadata(&a.out).is_err();
     std::fs::create_dir_all(&a.out)
         .map_err(|e| Error::Io(format!("cannot create {}: {e}", a.out.display())))?;
     let stem = m.file.name.trim_end_matches(".sqlite").to_string();
     let gz = format!("{}.gz", m.file.name);
     let manifest_name = format!("{stem}.manifest.json");
-    gzip_file(&a.db, &a.out.join(&gz), true)?;
+    let names = [
+        gz.as_str(),
+        manifest_name.as_str(),
+        "CITATION.cff",
+        "counts.svg",
+        "index.html",
+        "SHA256SUMS",
+    ];
+    let written = write_folder(&a, &conn, &m, year, &names);
+    if let Err(e) = written {
+        // No half release: the files of this release go, and the folder if it was new.
+        for n in names {
+            let _ = std::fs::remove_file(a.out.join(n));
+        }
+        if created {
+            let _ = std::fs::remove_dir(&a.out);
+        }
+        return Err(with_need(e, "the release", release_bytes(m.file.bytes)));
+    }
+    Ok(())
+}
+
+/// Writes the files `names` (gzipped table, manifest, citation, picture, page, sums) into
+/// the folder, SHA256SUMS last.
+fn write_folder(
+    a: &Args,
+    conn: &rusqlite::Connection,
+    m: &Manifest,
+    year: i64,
+    names: &[&str; 6],
+) -> Result<(), Error> {
+    let [gz, manifest_name, ..] = *names;
+    let ratios = stats_counts(conn)?;
+    gzip_file(&a.db, &a.out.join(gz), true)?;
     write_atomic(
-        &a.out.join(&manifest_name),
-        manifest_json(&m).as_bytes(),
+        &a.out.join(manifest_name),
+        manifest_json(m).as_bytes(),
         true,
     )?;
     let citation = Citation::of_table(
@@ -239,25 +284,20 @@ pub fn run(a: Args) -> Result<(), Error> {
     write_atomic(&a.out.join("CITATION.cff"), citation.cff().as_bytes(), true)?;
     write_atomic(
         &a.out.join("counts.svg"),
-        table_counts_svg(&conn)?.as_bytes(),
+        table_counts_svg(conn)?.as_bytes(),
         true,
     )?;
     let mut files = Vec::new();
-    for name in [
-        gz.as_str(),
-        manifest_name.as_str(),
-        "CITATION.cff",
-        "counts.svg",
-    ] {
+    for name in &names[..4] {
         files.push((name.to_string(), file_sha256(&a.out.join(name))?));
     }
     let page = index_html(&Page {
-        m: &m,
+        m,
         ratios,
         bibtex: citation.bibtex(),
         files: &files,
-        gz: gz.clone(),
-        manifest_name: manifest_name.clone(),
+        gz: gz.to_string(),
+        manifest_name: manifest_name.to_string(),
     });
     write_atomic(&a.out.join("index.html"), page.as_bytes(), true)?;
     files.push((

@@ -209,7 +209,7 @@ pub fn write_dataset(
     let manifest_path = dataset_targets(path, replace)?;
     let rows = curve_rows(groups)?;
     let tmp = TempFile::create(path, replace)?;
-    fill(tmp.path(), y, &rows).map_err(|e| write_error(path, e))?;
+    fill(tmp.path(), y, &rows).map_err(|e| write_error(path, None, e))?;
     let name = path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
