@@ -10,7 +10,7 @@
 mod common;
 
 use common::fixture::TestDir;
-use common::run::{command, committed_hash, ok, one_line_error, qorbits};
+use common::run::{command, committed_hash, ok, one_line_error, qorbits, two_shards_1e5};
 use common::tmpfs::{entries, Tmpfs};
 use std::os::unix::process::CommandExt;
 use std::path::Path;
@@ -203,22 +203,7 @@ fn a_manifest_that_cannot_be_written_leaves_no_table() {
 #[test]
 fn merge_onto_a_full_file_system_leaves_nothing() {
     let d = TestDir::new("full-merge");
-    for k in 1..=2 {
-        let shard = format!("{k}/2");
-        ok(&qorbits(
-            &[
-                "build",
-                "--height",
-                "1e5",
-                "--shard",
-                &shard,
-                "--out",
-                &format!("s{k}"),
-                "--quiet",
-            ],
-            &d.0,
-        ));
-    }
+    two_shards_1e5(&d.0);
     let Some(fs) = Tmpfs::mount("merge", "size=128k") else {
         return;
     };

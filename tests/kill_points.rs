@@ -15,7 +15,8 @@ mod common;
 
 use common::fixture::TestDir;
 use common::run::{
-    command, committed, committed_hash, file_like, files_under, kill_at, ok, qorbits, Point,
+    command, committed, committed_hash, file_like, files_under, kill_at, ok, qorbits,
+    two_shards_1e5, Point,
 };
 use common::tmpfs::entries;
 use std::path::{Path, PathBuf};
@@ -224,22 +225,7 @@ fn build_killed_anywhere_resumes_to_the_committed_hash() {
 #[test]
 fn merge_killed_anywhere_reruns_to_the_committed_hash() {
     let d = TestDir::new("kill-merge");
-    for k in 1..=2 {
-        let shard = format!("{k}/2");
-        ok(&qorbits(
-            &[
-                "build",
-                "--height",
-                "1e5",
-                "--shard",
-                &shard,
-                "--out",
-                &format!("s{k}"),
-                "--quiet",
-            ],
-            &d.0,
-        ));
-    }
+    two_shards_1e5(&d.0);
     let out = d.join("out");
     std::fs::create_dir(&out).unwrap();
     let args = ["merge", "../s1", "../s2", "--out", TABLE, "--quiet"];
@@ -376,22 +362,7 @@ fn a_kill_between_the_manifest_and_the_rename_is_completed_by_the_rerun() {
     assert!(s.contains("is complete") && s.contains(&hash), "{s}");
     assert_eq!(d.entries(), [MANIFEST, TABLE]);
     // The same for a merge; a temporary file whose hash is not the manifest's is not used.
-    for k in 1..=2 {
-        let shard = format!("{k}/2");
-        ok(&qorbits(
-            &[
-                "build",
-                "--height",
-                "1e5",
-                "--shard",
-                &shard,
-                "--out",
-                &format!("s{k}"),
-                "--quiet",
-            ],
-            &d.0,
-        ));
-    }
+    two_shards_1e5(&d.0);
     let merge = ["merge", "s1", "s2", "--out", TABLE, "--quiet"];
     let foreign = format!(".{TABLE}.tmp-{}", dead_pid());
     std::fs::write(d.join(&foreign), b"not the table").unwrap();

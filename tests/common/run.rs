@@ -156,3 +156,16 @@ pub fn file_like(
         })
     })
 }
+
+/// Builds the two shards of H < 10^5 into `dir/s1` and `dir/s2`.
+#[allow(dead_code)]
+pub fn two_shards_1e5(dir: &Path) {
+    for k in 1..=2 {
+        let shard = format!("{k}/2");
+        let out = format!("s{k}");
+        let args = [
+            "build", "--height", "1e5", "--shard", &shard, "--out", &out, "--quiet",
+        ];
+        ok(&qorbits(&args, dir));
+    }
+}
