@@ -118,18 +118,19 @@ fn build_on_a_small_file_system_keeps_its_runs_and_resumes() {
         fs.path(),
     );
     let e = one_line_error(&o);
-    for want in [
-        "cannot write qorbits-h1e5.sqlite",
-        "the file system is full",
-        "free on it",
-        "the build (table and runs) needs about",
-        "completed runs",
-        "kept in ./.qorbits-h1e5.sqlite.work",
-        "--resume",
-        "rm -r ./.qorbits-h1e5.sqlite.work",
-    ] {
-        assert!(e.contains(want), "{want}: {e}");
-    }
+    says(
+        &e,
+        &[
+            "cannot write qorbits-h1e5.sqlite",
+            "the file system is full",
+            "free on it",
+            "the build (table and runs) needs about",
+            "completed runs",
+            "kept in ./.qorbits-h1e5.sqlite.work",
+            "--resume",
+            "rm -r ./.qorbits-h1e5.sqlite.work",
+        ],
+    );
     assert!(
         bytes_after(&e, "needs about") >= table_bytes() as f64,
         "{e}"
@@ -152,15 +153,16 @@ fn build_under_a_file_size_limit_fails_in_one_line_and_resumes() {
         200_000,
     );
     let e = one_line_error(&o);
-    for want in [
-        "cannot write qorbits-h1e5.sqlite",
-        "file-size limit of 200.0 kB",
-        "ulimit -f",
-        "needs about",
-        "--resume",
-    ] {
-        assert!(e.contains(want), "{want}: {e}");
-    }
+    says(
+        &e,
+        &[
+            "cannot write qorbits-h1e5.sqlite",
+            "file-size limit of 200.0 kB",
+            "ulimit -f",
+            "needs about",
+            "--resume",
+        ],
+    );
     assert_eq!(d.entries(), [WORK]);
     kept_runs(&d.join(WORK));
     nothing_partial(&d.0);
@@ -218,14 +220,15 @@ fn merge_onto_a_full_file_system_leaves_nothing() {
         "--quiet",
     ];
     let e = one_line_error(&qorbits(&args, &d.0));
-    for want in [
-        format!("cannot write {}", out.display()).as_str(),
-        "the file system is full",
-        "the merge needs about",
-        "no partial file is left",
-    ] {
-        assert!(e.contains(want), "{want}: {e}");
-    }
+    says(
+        &e,
+        &[
+            format!("cannot write {}", out.display()).as_str(),
+            "the file system is full",
+            "the merge needs about",
+            "no partial file is left",
+        ],
+    );
     assert!(
         bytes_after(&e, "needs about") >= 0.9 * table_bytes() as f64,
         "{e}"
@@ -247,15 +250,16 @@ fn verify_rebuild_with_a_full_temporary_directory_leaves_nothing() {
     let mut c = command(&args, &cwd.0);
     c.env("TMPDIR", &tmp.0);
     let e = one_line_error(&limited(c, 200_000));
-    for want in [
-        "cannot write",
-        "rebuild.sqlite",
-        "file-size limit",
-        "the rebuild in the temporary directory (TMPDIR) needs about",
-        "no partial file is left",
-    ] {
-        assert!(e.contains(want), "{want}: {e}");
-    }
+    says(
+        &e,
+        &[
+            "cannot write",
+            "rebuild.sqlite",
+            "file-size limit",
+            "the rebuild in the temporary directory (TMPDIR) needs about",
+            "no partial file is left",
+        ],
+    );
     assert!(
         tmp.entries().is_empty() && cwd.entries().is_empty(),
         "{:?}",
@@ -321,13 +325,14 @@ fn export_and_release_onto_a_full_file_system_leave_nothing() {
             args.push("--gzip");
         }
         let e = one_line_error(&qorbits(&args, &here));
-        for want in [
-            format!("cannot write {}", out.display()).as_str(),
-            "the file system is full",
-            "the export needs about",
-        ] {
-            assert!(e.contains(want), "{want}: {e}");
-        }
+        says(
+            &e,
+            &[
+                format!("cannot write {}", out.display()).as_str(),
+                "the file system is full",
+                "the export needs about",
+            ],
+        );
         assert!(fs.entries().is_empty(), "{:?}", fs.entries());
     }
     // A release folder: made for the release, removed with its files.
@@ -336,13 +341,14 @@ fn export_and_release_onto_a_full_file_system_leave_nothing() {
         &["release", "--db", db, "--out", rel.to_str().unwrap()],
         &here,
     ));
-    for want in [
-        "cannot write",
-        "the file system is full",
-        "the release needs about",
-    ] {
-        assert!(e.contains(want), "{want}: {e}");
-    }
+    says(
+        &e,
+        &[
+            "cannot write",
+            "the file system is full",
+            "the release needs about",
+        ],
+    );
     assert!(
         bytes_after(&e, "needs about") >= 0.5 * table_bytes() as f64,
         "{e}"
@@ -356,4 +362,11 @@ fn export_and_release_onto_a_full_file_system_leave_nothing() {
     ));
     assert_eq!(fs.entries(), ["release"]);
     assert!(entries(&rel).is_empty(), "{:?}", entries(&rel));
+}
+
+/// Asserts that the error line `e` contains every phrase of `wants`.
+fn says(e: &str, wants: &[&str]) {
+    for want in wants {
+        assert!(e.contains(want), "{want}: {e}");
+    }
 }
