@@ -268,15 +268,20 @@ pub fn class_yield(a: i64, x: f64) -> f64 {
     0.0
 }
 
-/// The model of a build, calibrated by `cargo bench --bench build` on the development
-/// machine (2 cores; the figures are in DEVELOPERS.md): CPU seconds per unit of
-/// [`Plan::work`] and per class for the merge, bytes per class of the table and of the runs.
-/// A rule of thumb, not a bound: `plan` prints it, `build` checks the free disk against it.
+/// The model of a build, calibrated on the development machine (2 cores) by the builds of
+/// H < 10⁸, 10⁹ and 10¹⁰ (README, "Research heights": wall 115 s, 895 s and 5 814 s,
+/// user 171 s, 1 343 s and 8 966 s) and the shard part of `cargo bench --bench build`,
+/// which times the enumeration without the merge (112 s of one core at 10⁸): CPU seconds
+/// per unit of [`Plan::work`] in the enumeration, which runs on every thread, seconds per
+/// class of the merge, which is mostly serial (the writer and the content hash), and bytes
+/// per class of the table (the largest measured, 266 at 10¹⁰, so that the disk check errs
+/// on the safe side) and of the runs. A rule of thumb, not a bound: `plan` prints it,
+/// `build` checks the free disk against it.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Model {
     /// CPU seconds per unit of work (a classless candidate), on one core.
     pub seconds_per_unit: f64,
-    /// CPU seconds per class of the merge (grouping over Q, writing, hashing).
+    /// Wall seconds per class of the merge (grouping over Q, writing, hashing).
     pub merge_seconds_per_class: f64,
     /// Bytes per class of the finished table.
     pub table_bytes_per_class: f64,
@@ -286,9 +291,9 @@ pub struct Model {
 
 /// The calibrated model (see [`Model`]).
 pub const MODEL: Model = Model {
-    seconds_per_unit: 2.3e-6,
-    merge_seconds_per_class: 1.2e-5,
-    table_bytes_per_class: 245.0,
+    seconds_per_unit: 4.5e-6,
+    merge_seconds_per_class: 4.6e-5,
+    table_bytes_per_class: 266.0,
     run_bytes_per_class: 60.0,
 };
 
@@ -382,4 +387,43 @@ pub fn export_bytes(classes: u64, jsonl: bool, gzip: bool) -> f64 {
 /// (manifest, citation, picture, page: below 100 kB).
 pub fn release_bytes(table_bytes: u64) -> f64 {
     table_bytes as f64 + 100e3
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::progress::Silent;
+
+    /// The model against the builds measured on the development machine with
+    /// `/usr/bin/time -v qorbits build --height X --jobs 2 --quiet` (README, "Research
+    /// heights"): time and table size within a factor 1.5, the accuracy `plan` promises.
+    #[test]
+    fn the_model_predicts_the_measured_builds_within_a_factor_one_and_a_half() {
+        for (x, wall, bytes) in [
+            (100_000_000i128, 115.0, 297_263_104.0),
+            (1_000_000_000, 895.0, 2_436_673_536.0),
+        ] {
+            let p = plan(
+                &Params {
+                    height: x,
+                    include_reducible: false,
+                },
+                1,
+                &Silent,
+            )
+            .unwrap();
+            let e = p.estimate(None, 2, &MODEL);
+            for (what, got, want) in [("time", e.seconds, wall), ("size", e.table_bytes, bytes)] {
+                let r = got / want;
+                assert!(
+                    (1.0 / 1.5..=1.5).contains(&r),
+                    "{what} at {x}: {got} against {want}"
+                );
+            }
+            assert!(
+                e.disk_bytes >= bytes,
+                "the disk check needs at least the table"
+            );
+        }
+    }
 }
