@@ -25,6 +25,9 @@ pub const FAN_IN: usize = 256;
 /// Rows grouped into pairs before a batch is handed to the workers.
 const BATCH_ROWS: usize = 50_000;
 
+/// Batches of grouped pairs waiting for the writer thread at most.
+const IN_FLIGHT: usize = 2;
+
 /// A run to merge: its chunk index and its file.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Run {
@@ -103,25 +106,26 @@ fn reduce_fan_in(mut runs: Vec<Run>, params: &Params, work: &Path) -> Result<Vec
     Ok(runs)
 }
 
-/// Groups a batch of complete pairs' rows (each inner vector one pair, in order) and pushes
-/// the pairs to the writer in order.
-fn flush(batch: &mut Vec<Vec<ClassRow>>, writer: &mut TableWriter) -> Result<()> {
-    let pairs: Vec<Pair> = std::mem::take(batch)
+/// Groups a batch of complete pairs' rows (each inner vector one pair, in order) into
+/// pairs, in parallel on the current rayon pool.
+fn group_batch(batch: Vec<Vec<ClassRow>>) -> Result<Vec<Pair>> {
+    batch
         .into_par_iter()
         .map(|rows| {
             let (i, j) = (rows[0].i, rows[0].j);
             make_pair(i, j, rows)
         })
-        .collect::<Result<_>>()?;
-    for p in &pairs {
-        writer.push(p)?;
-    }
-    Ok(())
+        .collect()
 }
 
 /// Merges `runs` (the chunks of one build with `params`) into `writer`, on the current
 /// rayon pool; `work` holds intermediate runs when there are many. `progress` advances by
 /// the rows merged.
+///
+/// The writer runs on a thread of its own, fed batches of grouped pairs through a channel
+/// of [`IN_FLIGHT`] batches, so that SQLite's inserts overlap the reading of the runs and
+/// the grouping of the next batch. Batches reach it in order, so the bytes do not depend
+/// on the threads.
 pub fn merge_into(
     runs: Vec<Run>,
     params: &Params,
@@ -130,29 +134,51 @@ pub fn merge_into(
     progress: &dyn Progress,
 ) -> Result<u64> {
     let runs = reduce_fan_in(runs, params, work)?;
-    let mut batch: Vec<Vec<ClassRow>> = Vec::new();
-    let mut in_batch = 0usize;
-    let mut pair: Vec<ClassRow> = Vec::new();
-    let mut rows = 0u64;
-    merge_rows(&runs, params, |r| {
-        rows += 1;
-        if rows % 4096 == 0 {
-            progress.advance(4096);
-        }
-        if pair.first().is_some_and(|p| (p.i, p.j) != (r.i, r.j)) {
-            in_batch += pair.len();
-            batch.push(std::mem::take(&mut pair));
-            if in_batch >= BATCH_ROWS {
-                flush(&mut batch, writer)?;
-                in_batch = 0;
+    std::thread::scope(|scope| {
+        let (send, receive) = std::sync::mpsc::sync_channel::<Vec<Pair>>(IN_FLIGHT);
+        let writing = scope.spawn(move || -> Result<()> {
+            for pairs in receive {
+                for p in &pairs {
+                    writer.push(p)?;
+                }
             }
-        }
-        pair.push(r);
-        Ok(())
-    })?;
-    if !pair.is_empty() {
-        batch.push(pair);
-    }
-    flush(&mut batch, writer)?;
-    Ok(rows)
+            Ok(())
+        });
+        // A failed writer drops its receiver: the next send fails, the merge stops, and
+        // the writer's own error, not this one, is the one reported.
+        let flush = |batch: &mut Vec<Vec<ClassRow>>| -> Result<()> {
+            let pairs = group_batch(std::mem::take(batch))?;
+            send.send(pairs)
+                .map_err(|_| Error::Io("the table writer stopped".into()))
+        };
+        let mut batch: Vec<Vec<ClassRow>> = Vec::new();
+        let mut in_batch = 0usize;
+        let mut pair: Vec<ClassRow> = Vec::new();
+        let mut rows = 0u64;
+        let merged = merge_rows(&runs, params, |r| {
+            rows += 1;
+            if rows % 4096 == 0 {
+                progress.advance(4096);
+            }
+            if pair.first().is_some_and(|p| (p.i, p.j) != (r.i, r.j)) {
+                in_batch += pair.len();
+                batch.push(std::mem::take(&mut pair));
+                if in_batch >= BATCH_ROWS {
+                    flush(&mut batch)?;
+                    in_batch = 0;
+                }
+            }
+            pair.push(r);
+            Ok(())
+        })
+        .and_then(|()| {
+            if !pair.is_empty() {
+                batch.push(std::mem::take(&mut pair));
+            }
+            flush(&mut batch)
+        });
+        drop(send);
+        let written = writing.join().expect("the table writer does not panic");
+        written.and(merged).map(|()| rows)
+    })
 }
