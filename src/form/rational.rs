@@ -46,7 +46,11 @@ use crate::error::{Error, Result};
 use crate::form::galois::resolvent_roots;
 use crate::form::{resolvent_cubic, Form, Gl2};
 use rug::{Complex, Float, Integer};
+use std::sync::OnceLock;
 
+/// Degree-one primes whose residue symbols every element gets: most pairs of inequivalent
+/// elements already differ at one of them.
+const FIRST_PLACES: usize = 16;
 /// Degree-one primes tested for every component before any square root is tried.
 const PLACES: usize = 32;
 /// Degree-one primes added at each further round of the square test.
@@ -61,10 +65,54 @@ struct Component {
     g: Vec<Integer>,
     /// `|disc g|` (1 for a linear factor).
     disc: Integer,
-    /// Degree-one primes `(p, r)`: p odd, `p ∤ disc`, `g(r) ≡ 0 (mod p)`.
+    /// The first degree-one primes `(p, r)`: p odd, `p ∤ disc`, `g(r) ≡ 0 (mod p)`
+    /// ([`FIRST_PLACES`] of them for degree ≥ 2, none for a linear factor).
     places: Vec<(u64, u64)>,
-    /// The complex roots of g (degree ≥ 2), at a precision enough for most square tests.
-    roots: Vec<Complex>,
+    /// The degree-one primes after `places`, up to [`PLACES`] in all: found at the first
+    /// square test that needs them.
+    more: OnceLock<Vec<(u64, u64)>>,
+    /// The complex roots of g (degree ≥ 2), at a precision enough for most square tests:
+    /// computed at the first numerical square root.
+    roots: OnceLock<Vec<Complex>>,
+}
+
+impl Component {
+    fn new(g: Vec<Integer>) -> Component {
+        let disc = discriminant(&g).abs();
+        let mut c = Component {
+            g,
+            disc,
+            places: Vec::new(),
+            more: OnceLock::new(),
+            roots: OnceLock::new(),
+        };
+        if c.g.len() > 2 {
+            c.places = degree_one_places(&c, 2, FIRST_PLACES);
+        }
+        c
+    }
+
+    /// The degree-one primes after [`Component::places`].
+    fn more_places(&self) -> &[(u64, u64)] {
+        self.more.get_or_init(|| {
+            let from = self.places.last().map_or(2, |&(p, _)| p + 1);
+            degree_one_places(self, from, PLACES.saturating_sub(self.places.len()))
+        })
+    }
+
+    /// The complex roots of g at the default precision.
+    fn roots(&self) -> &[Complex] {
+        self.roots.get_or_init(|| {
+            let size = self
+                .g
+                .iter()
+                .map(Integer::significant_bits)
+                .max()
+                .unwrap_or(1);
+            let prec = 128 + 2 * self.disc.significant_bits() + 4 * size + 32;
+            complex_roots(&self.g, prec)
+        })
+    }
 }
 
 /// The algebra `L = Q[φ]/(φ³ − 3Iφ + J)` of a pair (I, J) with `4I³ ≠ J²`, as a product of
@@ -92,7 +140,7 @@ impl Algebra {
                 "(I, J) = ({i}, {j}) has 4I³ = J²: the resolvent cubic has a repeated root"
             )));
         }
-        let roots = resolvent_roots(i, j).expect("big integers do not overflow");
+        let roots = rational_roots(i, j);
         let i3: Integer = Integer::from(-3) * i;
         let components = match roots.as_slice() {
             [] => {
@@ -112,25 +160,7 @@ impl Algebra {
                 .map(|r| vec![Integer::from(-r), Integer::from(1)])
                 .collect(),
         };
-        let components = components
-            .into_iter()
-            .map(|g| {
-                let disc = discriminant(&g).abs();
-                let mut c = Component {
-                    g,
-                    disc,
-                    places: Vec::new(),
-                    roots: Vec::new(),
-                };
-                if c.g.len() > 2 {
-                    c.places = degree_one_places(&c, 2, PLACES);
-                    let size = c.g.iter().map(Integer::significant_bits).max().unwrap_or(1);
-                    let prec = 128 + 2 * c.disc.significant_bits() + 4 * size + 32;
-                    c.roots = complex_roots(&c.g, prec);
-                }
-                c
-            })
-            .collect();
+        let components = components.into_iter().map(Component::new).collect();
         Ok(Algebra {
             i: i.clone(),
             j: j.clone(),
@@ -246,6 +276,17 @@ impl Algebra {
     }
 }
 
+/// The integer roots of the resolvent `φ³ − 3Iφ + J`: on machine integers when they do
+/// not overflow (the same exact search), else on big integers.
+fn rational_roots(i: &Integer, j: &Integer) -> Vec<Integer> {
+    if let (Some(i), Some(j)) = (i.to_i128(), j.to_i128()) {
+        if let Some(roots) = resolvent_roots(&i, &j) {
+            return roots.into_iter().map(Integer::from).collect();
+        }
+    }
+    resolvent_roots(i, j).expect("big integers do not overflow")
+}
+
 /// The first `count` degree-one primes `(p, r)` of a component with `p ≥ from`.
 fn degree_one_places(c: &Component, from: u64, count: usize) -> Vec<(u64, u64)> {
     let mut out = Vec::with_capacity(count);
@@ -302,13 +343,14 @@ fn is_square(u: &[Integer], c: &Component) -> Result<bool> {
     if c.g.len() == 2 {
         return Ok(u[0] > 0 && u[0].is_perfect_square());
     }
-    if c.places.iter().any(|&place| symbol_at(u, place) == -1) {
+    let first = c.places.iter().chain(c.more_places());
+    if first.clone().any(|&place| symbol_at(u, place) == -1) {
         return Ok(false);
     }
     let bits = |x: &Integer| x.significant_bits();
     let size = u.iter().chain(&c.g).map(bits).max().unwrap_or(1);
     let mut prec = 128 + 2 * bits(&c.disc) + 2 * size;
-    let mut next = c.places.last().map_or(2, |&(p, _)| p + 1);
+    let mut next = first.last().map_or(2, |&(p, _)| p + 1);
     loop {
         if let Some(true) = numerical_root(u, c, prec) {
             return Ok(true);
@@ -333,8 +375,8 @@ fn is_square(u: &[Integer], c: &Component) -> Result<bool> {
 fn numerical_root(u: &[Integer], c: &Component, prec: u32) -> Option<bool> {
     let n = c.g.len() - 1;
     let fresh;
-    let theta: &[Complex] = match c.roots.first() {
-        Some(r) if r.prec().0 >= prec => &c.roots,
+    let theta: &[Complex] = match c.roots().first() {
+        Some(r) if r.prec().0 >= prec => c.roots(),
         _ => {
             fresh = complex_roots(&c.g, prec);
             &fresh
@@ -455,12 +497,8 @@ mod tests {
     fn squares_with_denominators_are_recognised() {
         // φ³ − 3·3φ + 0 = φ(φ² − 9) splits; take a field with a non-monogenic-looking
         // element instead: g = x² − x·0 − 5 (component of (I, J) with a rational root).
-        let c = Component {
-            g: vec![int(-5), int(0), int(1)],
-            disc: int(20),
-            places: Vec::new(),
-            roots: Vec::new(),
-        };
+        let c = Component::new(vec![int(-5), int(0), int(1)]);
+        assert_eq!(c.disc, 20);
         // ((1 + √5)/2)² = (3 + √5)/2 is not in Z[√5], but 4·that = 6 + 2√5 is a square.
         assert!(is_square(&[int(6), int(2)], &c).unwrap());
         assert!(!is_square(&[int(3), int(1)], &c).unwrap());
