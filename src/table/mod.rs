@@ -3,7 +3,7 @@
 //! ([`pipeline`]), the storage contract ([`schema`]) and the kinds of file ([`format`]), the writer ([`writer`]) with its
 //! atomic files ([`atomic`]), the reader ([`reader`]) and what it checks of a file before
 //! reading it ([`validate`], [`header`], [`schema_check`], [`pair_check`]), the hashes
-//! ([`hash`]), manifests ([`manifest`]), verification ([`verify`], [`pages`]), the JSON
+//! ([`hash`], computed in parallel by [`pieces`]), manifests ([`manifest`]), verification ([`verify`], [`pages`]), the JSON
 //! number rule ([`json`]), queries by invariants ([`query`]), selections ([`select`]),
 //! lookups of any form ([`lookup`]), exports ([`export`]), counts against the asymptotic
 //! main terms ([`stats`]), and the scalable build: plan ([`plan`]), sorted runs ([`runs`]),
@@ -26,6 +26,7 @@ pub mod manifest;
 pub mod merge;
 pub mod pages;
 pub mod pair_check;
+pub mod pieces;
 pub mod pipeline;
 pub mod plan;
 pub mod query;
