@@ -122,27 +122,47 @@ pub(crate) fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
             .query_row(sql, [], |r| r.get::<_, i64>(0))
             .map_err(err)? as u64)
     };
-    let count_by = |column: &str, names: &[&str]| -> Result<BTreeMap<String, u64>> {
-        let sql = format!("SELECT count(*) FROM classes WHERE {column} = ?1");
-        let mut out = BTreeMap::new();
-        for name in names {
-            let n: i64 = conn.query_row(&sql, [name], |r| r.get(0)).map_err(err)?;
-            out.insert(name.to_string(), n as u64);
-        }
-        Ok(out)
-    };
-    let by_signature = count_by("signature", &Signature::ALL.map(Signature::name))?;
-    let mut by_galois = count_by("galois", &GaloisGroup::ALL.map(GaloisGroup::name))?;
-    by_galois.insert(
-        "reducible".into(),
-        one("SELECT count(*) FROM classes WHERE irreducible = 0")?,
+    // One pass over `classes`: a sum for each value counted.
+    let signatures = Signature::ALL.map(Signature::name);
+    let groups = GaloisGroup::ALL.map(GaloisGroup::name);
+    let mut sums: Vec<String> = Vec::new();
+    for (column, names) in [("signature", &signatures[..]), ("galois", &groups[..])] {
+        sums.extend(names.iter().map(|n| format!("{column} = '{n}'")));
+    }
+    sums.extend(["irreducible = 0".into(), "els = 1".into()]);
+    let sql = format!(
+        "SELECT {} FROM classes",
+        sums.iter()
+            .map(|s| format!("coalesce(sum({s}), 0)"))
+            .collect::<Vec<_>>()
+            .join(", ")
     );
+    let values: Vec<u64> = conn
+        .query_row(&sql, [], |r| {
+            (0..sums.len())
+                .map(|k| Ok(r.get::<_, i64>(k)? as u64))
+                .collect()
+        })
+        .map_err(err)?;
+    let (by_signature, rest) = values.split_at(signatures.len());
+    let (by_galois, rest) = rest.split_at(groups.len());
+    let zip = |names: &[&str], n: &[u64]| -> BTreeMap<String, u64> {
+        names
+            .iter()
+            .map(|s| s.to_string())
+            .zip(n.iter().copied())
+            .collect()
+    };
+    let by_signature = zip(&signatures, by_signature);
+    let mut by_galois = zip(&groups, by_galois);
+    let (reducible, els) = (rest[0], rest[1]);
+    by_galois.insert("reducible".into(), reducible);
     Ok(Counts {
         classes: one("SELECT count(*) FROM classes")?,
         pairs: one("SELECT count(*) FROM pairs")?,
         by_signature,
         by_galois,
-        els: one("SELECT count(*) FROM classes WHERE els = 1")?,
+        els,
         rational_els: one("SELECT coalesce(sum(rational_els), 0) FROM pairs")?,
     })
 }
@@ -165,6 +185,20 @@ pub fn manifest_named(path: &Path, name: &str) -> Result<Manifest> {
     let bytes = std::fs::metadata(path)
         .map_err(|e| Error::Io(format!("{}: {e}", path.display())))?
         .len();
+    // The file hash reads the bytes on a thread of its own while the counts and the
+    // content hash read the tables.
+    let (sha256, counts, content) = std::thread::scope(|scope| {
+        let file = scope.spawn(|| file_sha256(path));
+        let counts = counts(&conn);
+        let content = counts.is_ok().then(|| content_sha256(&conn));
+        (
+            file.join().expect("hashing does not panic"),
+            counts,
+            content,
+        )
+    });
+    let counts = counts?;
+    let (sha256, content_sha256) = (sha256?, content.expect("counted")?);
     Ok(Manifest {
         format: FORMAT.into(),
         parameters: params,
@@ -173,13 +207,13 @@ pub fn manifest_named(path: &Path, name: &str) -> Result<Manifest> {
             schema: SCHEMA_VERSION,
             sqlite: rusqlite::version().into(),
         },
-        counts: counts(&conn)?,
+        counts,
         file: FileInfo {
             name: name.clone(),
             bytes,
-            sha256: file_sha256(path)?,
+            sha256,
         },
-        content_sha256: content_sha256(&conn)?,
+        content_sha256,
         content_recipe: content_recipe(&name),
     })
 }
