@@ -30,6 +30,7 @@
 use crate::arith::primes::factor_text;
 use crate::error::{Error, Result};
 use crate::form::galois::GaloisGroup;
+use crate::form::local::LocalPlace;
 use crate::table::atomic::TempFile;
 use crate::table::format::{Format, TABLE};
 use crate::table::group::label;
@@ -38,7 +39,7 @@ use crate::table::schema::{
     place_to_column, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_VERSION,
 };
 use crate::table::space::{no_space, sqlite_cause};
-use rusqlite::{params, Connection, ErrorCode, OpenFlags};
+use rusqlite::{params, Connection, ErrorCode, OpenFlags, ToSql};
 use std::path::{Path, PathBuf};
 
 /// A table being written. Push the pairs in table order, then [`TableWriter::finish`]; a
@@ -52,6 +53,9 @@ pub struct TableWriter {
     classes: i64,
     pairs: i64,
     last: Option<(i64, i64, i64, [i64; 5])>,
+    /// The statements inserting n rows of `local` and of `pair_primes`, by n.
+    local_sql: Vec<String>,
+    primes_sql: Vec<String>,
 }
 
 /// How many rows [`TableWriter::finish`] wrote.
@@ -78,6 +82,8 @@ impl TableWriter {
             classes: 0,
             pairs: 0,
             last: None,
+            local_sql: Vec::new(),
+            primes_sql: Vec::new(),
         })
     }
 
@@ -190,7 +196,6 @@ impl TableWriter {
             "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, \
              ?14, ?15, ?16, ?17, ?18, ?19, ?20)",
         )?;
-        let mut loc = conn.prepare_cached("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?;
         for (k, r) in pair.classes.iter().enumerate() {
             let id = first_id + k as i64;
             let [a, b, c, d, e] = r.form;
@@ -216,12 +221,21 @@ impl TableWriter {
                 r.insoluble_at(),
                 first_of[k],
             ])?;
-            // In key order (class_id, p): the real place (p = 0) first.
-            let mut places: Vec<_> = r.local.iter().collect();
-            places.sort_by_key(|l| place_to_column(&l.place));
-            for l in places {
-                let p = place_to_column(&l.place);
-                loc.execute(params![id, p, l.v_disc, l.pattern, l.soluble])?;
+            // In key order (class_id, p): the real place (p = 0) first; all places of a
+            // class in one statement, which inserts them in that order.
+            let mut places: Vec<(i64, &LocalPlace<i64>)> = r
+                .local
+                .iter()
+                .map(|l| (place_to_column(&l.place), l))
+                .collect();
+            places.sort_by_key(|&(p, _)| p);
+            if !places.is_empty() {
+                let mut values: Vec<&dyn ToSql> = Vec::with_capacity(5 * places.len());
+                for (p, l) in &places {
+                    values.extend([&id as &dyn ToSql, p, &l.v_disc, &l.pattern, &l.soluble]);
+                }
+                conn.prepare_cached(sql_for(&mut self.local_sql, "local", 5, places.len()))?
+                    .execute(&values[..])?;
             }
         }
         self.classes += pair.classes.len() as i64;
@@ -246,12 +260,36 @@ impl TableWriter {
             pair.els() as i64,
             pair.over_q.len() as i64,
         ])?;
-        let mut pp = conn.prepare_cached("INSERT INTO pair_primes VALUES (?1, ?2, ?3)")?;
-        for (q, e) in &pair.disc_factors {
-            pp.execute(params![self.pairs, q, e])?;
+        // The primes of the pair in one statement, in order.
+        if !pair.disc_factors.is_empty() {
+            let mut values: Vec<&dyn ToSql> = Vec::with_capacity(3 * pair.disc_factors.len());
+            for (q, e) in &pair.disc_factors {
+                values.extend([&self.pairs as &dyn ToSql, q, e]);
+            }
+            conn.prepare_cached(sql_for(
+                &mut self.primes_sql,
+                "pair_primes",
+                3,
+                pair.disc_factors.len(),
+            ))?
+            .execute(&values[..])?;
         }
         Ok(())
     }
+}
+
+/// [`insert_sql`], kept in `cache` by `n`.
+fn sql_for<'a>(cache: &'a mut Vec<String>, table: &str, columns: usize, n: usize) -> &'a str {
+    while cache.len() <= n {
+        cache.push(insert_sql(table, columns, cache.len()));
+    }
+    &cache[n]
+}
+
+/// The statement inserting `n` rows of `columns` values into `table` at once.
+fn insert_sql(table: &str, columns: usize, n: usize) -> String {
+    let row = format!("({})", vec!["?"; columns].join(", "));
+    format!("INSERT INTO {table} VALUES {}", vec![row; n].join(", "))
 }
 
 /// Creates a database of format `f` in the (empty) file `tmp`: the fixed settings (page
@@ -285,6 +323,9 @@ pub fn new_database(tmp: &Path, f: &Format) -> rusqlite::Result<Connection> {
 /// transaction.
 fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
     let conn = new_database(tmp, &TABLE)?;
+    // Room for the statements of every number of local rows of a class and of primes of
+    // a pair.
+    conn.set_prepared_statement_cache_capacity(64);
     {
         let mut meta = conn.prepare("INSERT INTO meta (key, value) VALUES (?1, ?2)")?;
         let include = if params.include_reducible { "1" } else { "0" };
