@@ -185,20 +185,19 @@ pub fn manifest_named(path: &Path, name: &str) -> Result<Manifest> {
     let bytes = std::fs::metadata(path)
         .map_err(|e| Error::Io(format!("{}: {e}", path.display())))?
         .len();
-    // The file hash reads the bytes on a thread of its own while the counts and the
-    // content hash read the tables.
-    let (sha256, counts, content) = std::thread::scope(|scope| {
-        let file = scope.spawn(|| file_sha256(path));
-        let counts = counts(&conn);
-        let content = counts.is_ok().then(|| content_sha256(&conn));
-        (
-            file.join().expect("hashing does not panic"),
-            counts,
-            content,
-        )
+    // The file hash and the counts (on a connection of their own) run on a thread of
+    // their own while the content hash reads the tables on the workers.
+    let (sha256_counts, content) = std::thread::scope(|scope| {
+        let other = scope.spawn(|| -> Result<(String, Counts)> {
+            let sha256 = file_sha256(path)?;
+            let own = open_table(path)?;
+            Ok((sha256, counts(&own)?))
+        });
+        let content = content_sha256(&conn);
+        (other.join().expect("hashing does not panic"), content)
     });
-    let counts = counts?;
-    let (sha256, content_sha256) = (sha256?, content.expect("counted")?);
+    let (sha256, counts) = sha256_counts?;
+    let content_sha256 = content?;
     Ok(Manifest {
         format: FORMAT.into(),
         parameters: params,
