@@ -10,7 +10,9 @@
 //! * the merge of the 16 shards against a plain insert of the same rows.
 //!
 //! Run: `cargo bench --bench build` (heights 1e6, 1e7, 1e8; `QORBITS_BENCH_HEIGHTS=1e6,1e9`
-//! for others; `QORBITS_BENCH_SHARDS=1e7` for the shard height, `none` to skip).
+//! for others; `QORBITS_BENCH_SHARDS=1e7` for the shard height, `none` to skip;
+//! `QORBITS_BENCH_SHARD_COUNTS=16` for other shard counts, the merge measured when 16 is
+//! among them).
 
 use rusqlite::Connection;
 use std::path::{Path, PathBuf};
@@ -221,7 +223,14 @@ fn shards(x: i128, dir: &Path) {
         "{:>6} {:>10} {:>10} {:>10} {:>9}",
         "shards", "mean s", "slowest s", "fastest s", "balance"
     );
-    for n in [4usize, 16, 64] {
+    let counts: Vec<usize> = std::env::var("QORBITS_BENCH_SHARD_COUNTS")
+        .map(|s| {
+            s.split(',')
+                .map(|n| n.trim().parse().expect("shard counts"))
+                .collect()
+        })
+        .unwrap_or_else(|_| vec![4, 16, 64]);
+    for n in counts {
         let base = dir.join(format!("shards{n}"));
         let mut times = Vec::new();
         for k in 1..=n {
