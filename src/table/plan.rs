@@ -269,11 +269,12 @@ pub fn class_yield(a: i64, x: f64) -> f64 {
 }
 
 /// The model of a build, calibrated on the development machine (2 cores) by the builds of
-/// H < 10⁸, 10⁹ and 10¹⁰ (README, "Research heights": wall 115 s, 895 s and 5 814 s,
-/// user 171 s, 1 343 s and 8 966 s) and the shard part of `cargo bench --bench build`,
-/// which times the enumeration without the merge (112 s of one core at 10⁸): CPU seconds
+/// H < 10⁸ and 10⁹ (README, "Research heights": wall 77 s and 612 s, user 143 s and
+/// 1 158 s; the enumeration constant also by the build of 10¹⁰, 8 966 s of user time) and
+/// the shard part of `cargo bench --bench build`, which times the enumeration without the
+/// merge (112 s of one core at 10⁸): CPU seconds
 /// per unit of [`Plan::work`] in the enumeration, which runs on every thread, seconds per
-/// class of the merge, which is mostly serial (the writer and the content hash), and bytes
+/// class of the merge, which is bound by its one writer thread, and bytes
 /// per class of the table (the largest measured, 266 at 10¹⁰, so that the disk check errs
 /// on the safe side) and of the runs. A rule of thumb, not a bound: `plan` prints it,
 /// `build` checks the free disk against it.
@@ -292,7 +293,7 @@ pub struct Model {
 /// The calibrated model (see [`Model`]).
 pub const MODEL: Model = Model {
     seconds_per_unit: 4.5e-6,
-    merge_seconds_per_class: 4.6e-5,
+    merge_seconds_per_class: 2.0e-5,
     table_bytes_per_class: 266.0,
     run_bytes_per_class: 60.0,
 };
@@ -400,8 +401,8 @@ mod tests {
     #[test]
     fn the_model_predicts_the_measured_builds_within_a_factor_one_and_a_half() {
         for (x, wall, bytes) in [
-            (100_000_000i128, 115.0, 297_263_104.0),
-            (1_000_000_000, 895.0, 2_436_673_536.0),
+            (100_000_000i128, 77.0, 297_263_104.0),
+            (1_000_000_000, 612.0, 2_436_673_536.0),
         ] {
             let p = plan(
                 &Params {
