@@ -21,6 +21,7 @@ use crate::form::Signature;
 use crate::progress::Progress;
 use crate::table::atomic::{fresh_temp_dir, write_atomic};
 use crate::table::hash::{content_sha256, file_sha256};
+use crate::table::pieces;
 use crate::table::reader::{open_table, read_error, table_params};
 use crate::table::row::Params;
 use crate::table::schema::{CONTENT_SQL, PAGE_SIZE, SCHEMA_VERSION};
@@ -122,7 +123,7 @@ pub(crate) fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
             .query_row(sql, [], |r| r.get::<_, i64>(0))
             .map_err(err)? as u64)
     };
-    // One pass over `classes`: a sum for each value counted.
+    // One pass over `classes`: the rows, and a sum for each value counted.
     let signatures = Signature::ALL.map(Signature::name);
     let groups = GaloisGroup::ALL.map(GaloisGroup::name);
     let mut sums: Vec<String> = Vec::new();
@@ -131,7 +132,7 @@ pub(crate) fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
     }
     sums.extend(["irreducible = 0".into(), "els = 1".into()]);
     let sql = format!(
-        "SELECT {} FROM classes",
+        "SELECT count(*), {} FROM classes",
         sums.iter()
             .map(|s| format!("coalesce(sum({s}), 0)"))
             .collect::<Vec<_>>()
@@ -139,12 +140,13 @@ pub(crate) fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
     );
     let values: Vec<u64> = conn
         .query_row(&sql, [], |r| {
-            (0..sums.len())
+            (0..=sums.len())
                 .map(|k| Ok(r.get::<_, i64>(k)? as u64))
                 .collect()
         })
         .map_err(err)?;
-    let (by_signature, rest) = values.split_at(signatures.len());
+    let (classes, rest) = (values[0], &values[1..]);
+    let (by_signature, rest) = rest.split_at(signatures.len());
     let (by_galois, rest) = rest.split_at(groups.len());
     let zip = |names: &[&str], n: &[u64]| -> BTreeMap<String, u64> {
         names
@@ -158,7 +160,7 @@ pub(crate) fn counts(conn: &rusqlite::Connection) -> Result<Counts> {
     let (reducible, els) = (rest[0], rest[1]);
     by_galois.insert("reducible".into(), reducible);
     Ok(Counts {
-        classes: one("SELECT count(*) FROM classes")?,
+        classes,
         pairs: one("SELECT count(*) FROM pairs")?,
         by_signature,
         by_galois,
@@ -190,7 +192,7 @@ pub fn manifest_named(path: &Path, name: &str) -> Result<Manifest> {
     let (sha256_counts, content) = std::thread::scope(|scope| {
         let other = scope.spawn(|| -> Result<(String, Counts)> {
             let sha256 = file_sha256(path)?;
-            let own = open_table(path)?;
+            let own = pieces::open(path)?;
             Ok((sha256, counts(&own)?))
         });
         let content = content_sha256(&conn);

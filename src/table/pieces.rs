@@ -17,7 +17,7 @@ use crate::table::format::Format;
 use crate::table::hash::{content_statements, hex, render_row, statement_table};
 use crate::table::schema_check::{columns_in, Column};
 use rayon::prelude::*;
-use rusqlite::types::ValueRef;
+use rusqlite::types::{Value, ValueRef};
 use rusqlite::{Connection, OpenFlags};
 use sha2::{Digest, Sha256};
 use std::cmp::Ordering;
@@ -38,8 +38,9 @@ struct Plan {
     ranged: Option<&'static str>,
     /// Positions of the sort columns of `sql`, in order.
     order: Vec<usize>,
-    /// The held-back term: the positions of the group columns before it and of `x`.
-    held: Option<(Vec<usize>, usize)>,
+    /// The held-back term: how many sort columns before it make a group (a prefix of
+    /// `order`), and the position of `x`.
+    held: Option<(usize, usize)>,
 }
 
 fn not_expected(what: &str) -> Error {
@@ -63,12 +64,12 @@ fn plan(f: &'static Format, sql: &'static str) -> Option<Plan> {
     let mut held = None;
     for (k, t) in terms.iter().enumerate() {
         if let Some(x) = t.strip_suffix(" = 0").map(str::trim) {
-            let group: Option<Vec<usize>> = terms[..k].iter().map(|g| position(g)).collect();
             // Only `…, x = 0, x`, once, after at least the first (ranged) column.
             if held.is_some() || k == 0 || terms.get(k + 1) != Some(&x) {
                 return None;
             }
-            held = Some((group?, position(x)?));
+            // The terms before it are kept ones, so the group is `order[..k]`.
+            held = Some((k, position(x)?));
             continue;
         }
         kept.push(*t);
@@ -91,7 +92,7 @@ fn plan(f: &'static Format, sql: &'static str) -> Option<Plan> {
 }
 
 /// A read-only connection to the file at `path`.
-fn open(path: &Path) -> Result<Connection> {
+pub(crate) fn open(path: &Path) -> Result<Connection> {
     Connection::open_with_flags(
         path,
         OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
@@ -124,42 +125,36 @@ fn render_piece(conn: &Connection, p: &Plan, range: Option<(i64, i64)>) -> Resul
     }
     .map_err(db)?;
     let (mut out, mut line, mut held) = (Vec::new(), Vec::new(), Vec::new());
-    let mut last: Vec<rusqlite::types::Value> = Vec::new();
+    let mut last: Vec<Value> = Vec::new();
     let mut count = 0u64;
     while let Some(r) = rows.next().map_err(db)? {
+        let key: Vec<Value> = p
+            .order
+            .iter()
+            .map(|&c| r.get_ref(c).map(Value::from))
+            .collect::<rusqlite::Result<_>>()
+            .map_err(db)?;
         // The sort columns strictly increase: the order is total, as in the reference.
-        let mut cmp = if count == 0 {
-            Ordering::Greater
-        } else {
-            Ordering::Equal
-        };
-        let mut new_group = count == 0;
-        for (k, &c) in p.order.iter().enumerate() {
-            let v = r.get_ref(c).map_err(db)?;
-            if cmp == Ordering::Equal {
-                cmp = compare(v, (&last[k]).into())?;
-                if cmp == Ordering::Equal {
-                    continue;
-                }
-                if p.held.as_ref().is_some_and(|(g, _)| g.contains(&c)) {
-                    new_group = true;
-                }
+        // `first` is the first sort column that changed (0 for the first row).
+        let mut first = 0;
+        if count > 0 {
+            let mut cmp = Ordering::Equal;
+            while cmp == Ordering::Equal && first < key.len() {
+                cmp = compare((&key[first]).into(), (&last[first]).into())?;
+                first += usize::from(cmp == Ordering::Equal);
+            }
+            if cmp != Ordering::Greater {
+                return Err(not_expected("sort keys that do not strictly increase"));
             }
         }
-        if cmp != Ordering::Greater {
-            return Err(not_expected("sort keys that do not strictly increase"));
-        }
-        last.clear();
-        for &c in &p.order {
-            last.push(r.get_ref(c).map_err(db)?.into());
-        }
-        if new_group {
+        last = key;
+        if p.held.is_some_and(|(group, _)| first < group) {
             out.append(&mut held);
         }
         line.clear();
         render_row(r, n, p.cols, &mut line).map_err(|_| not_expected("this value"))?;
         count += 1;
-        match p.held.as_ref().map(|&(_, x)| r.get_ref(x)) {
+        match p.held.map(|(_, x)| r.get_ref(x)) {
             None => out.extend_from_slice(&line),
             Some(Ok(ValueRef::Integer(0))) if held.is_empty() => held.extend_from_slice(&line),
             Some(Ok(ValueRef::Integer(_))) => out.extend_from_slice(&line),
