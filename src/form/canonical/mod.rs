@@ -32,7 +32,7 @@
 use crate::arith::int::Int;
 use crate::arith::real::{Cx, Mp, Real};
 use crate::error::{Error, Result};
-use crate::form::covariant::{point_f64, point_mp, Point};
+use crate::form::covariant::{locate_f64, point_f64, point_mp, Located, Point};
 use crate::form::{Form, Gl2};
 use rug::Integer;
 
@@ -107,7 +107,14 @@ pub type Translate = (Form<i128>, Option<Point<f64>>);
 /// `[−η, ½ + η]` (at most one; up to two are returned when the point is within 10⁻⁶ of the
 /// strip's edge, to be decided exactly by the caller). Each comes with its moved point.
 pub fn translates_into_strip(f: &Form<i128>) -> Result<Vec<Translate>> {
-    let p = point_f64(&f.c.map(|v| v as f64));
+    // Most candidates have their point far below the strip's floor; a proof of that ends the
+    // descent early. The margin keeps the proof on the same side as the test below, whose
+    // points are good to 1e-7.
+    let p = match locate_f64(&f.c.map(|v| v as f64), y_min() - WINDOW - 1e-6) {
+        Some(Located::Below) => return Ok(Vec::new()),
+        Some(Located::Point(p)) => Some(p),
+        None => None,
+    };
     let (x, y) = match &p {
         Some(p) => (p.x, p.y),
         None => approximate_point_f64(f)?,
