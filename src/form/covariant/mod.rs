@@ -345,7 +345,7 @@ struct Cut {
 /// when its root moves by δ (w ≥ y²), and is at most `2/y` in size; `e` bounds both
 /// effects, doubled, over the four terms and `−4/y`.
 fn proves_below(y: f64, gx: f64, gy: f64, cut: Cut) -> bool {
-    if !(y > 0.0) || cut.root_err > 1e-6 * y {
+    if y.is_nan() || y <= 0.0 || cut.root_err > 1e-6 * y {
         return false;
     }
     let e = 64.0 * cut.root_err / (y * y) + 1e-13 * 12.0 / y;
