@@ -14,7 +14,7 @@
 use crate::arith::primes::{factor_text, try_factor};
 use crate::error::Result;
 use crate::form::canonical::{canonical, Canonical};
-use crate::form::galois::{factor_pattern, galois_group, FactorPattern, GaloisGroup};
+use crate::form::galois::{factor_pattern, galois_group_with, FactorPattern, GaloisGroup};
 use crate::form::local::{local_data, LocalPlace};
 use crate::form::{Form, Invariants, Signature};
 use rug::Integer;
@@ -50,7 +50,7 @@ pub fn describe(f: &Form<Integer>) -> Result<Description> {
         .signature(&invariants)
         .expect("big integers do not overflow");
     let pattern = factor_pattern(g).expect("big integers do not overflow");
-    let galois = galois_group(g).expect("big integers do not overflow");
+    let galois = galois_group_with(g, pattern).expect("big integers do not overflow");
     // A few seconds of rho at most; discriminants up to 10²⁴ take milliseconds.
     let disc_factors = try_factor(&invariants.disc, 4_000_000);
     let local = disc_factors

@@ -179,7 +179,16 @@ fn square_in_quadratic_field<T: Int>(d: &T, disc: &T) -> Option<bool> {
 /// The Galois group of an irreducible form (`Some(None)` for reducible forms), exactly;
 /// `None` on overflow.
 pub fn galois_group<T: Int>(f: &Form<T>) -> Option<Option<GaloisGroup>> {
-    if factor_pattern(f)? != FactorPattern::Irreducible {
+    galois_group_with(f, factor_pattern(f)?)
+}
+
+/// [`galois_group`] of a form whose [`factor_pattern`] is already known to be `pattern`
+/// (it is not computed a second time).
+pub fn galois_group_with<T: Int>(
+    f: &Form<T>,
+    pattern: FactorPattern,
+) -> Option<Option<GaloisGroup>> {
+    if pattern != FactorPattern::Irreducible {
         return Some(None);
     }
     let inv = f.invariants()?;

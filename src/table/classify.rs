@@ -16,7 +16,7 @@
 use crate::arith::factor64::factor_u64;
 use crate::error::{Error, Result};
 use crate::form::canonical::{is_canonical_with, stabiliser_near, translates_into_strip};
-use crate::form::galois::{factor_pattern, galois_group, FactorPattern};
+use crate::form::galois::{factor_pattern, galois_group_with, FactorPattern};
 use crate::form::local::local_data_machine;
 use crate::form::Form;
 use crate::table::row::ClassRow;
@@ -68,8 +68,8 @@ fn annotate(
     if pattern != FactorPattern::Irreducible && !what.include_reducible {
         return Ok(None);
     }
-    let galois = galois_group(f)
-        .or_else(|| galois_group(&f.to_big()))
+    let galois = galois_group_with(f, pattern)
+        .or_else(|| galois_group_with(&f.to_big(), pattern))
         .expect("big integers do not overflow");
     let signature = f.signature(&inv).ok_or(Error::Overflow)?;
     let stabiliser = stabiliser_near(f, point)?.len() as u8;
