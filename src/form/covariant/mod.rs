@@ -243,7 +243,6 @@ fn roots<R: Real>(c: &[R; 5], guess: Option<Vec<Cx<f64>>>) -> Option<Roots<R>> {
     let pf: Vec<f64> = p.iter().map(|x| x.to_f64()).collect();
     let guess = guess
         .filter(|g| g.len() == p.len() - 1)
-        .or_else(|| quartic_guesses(&pf))
         .unwrap_or_else(|| initial_guesses(&pf));
     let mut z: Vec<Cx<R>> = guess
         .into_iter()
@@ -529,7 +528,9 @@ pub fn locate_f64(c: &[f64; 5], y_cut: f64) -> Option<Located> {
     if c.iter().any(|x| !x.is_finite() || x.abs() >= 2f64.powi(52)) {
         return None;
     }
-    let r = roots(c, None)?;
+    // Ferrari's start only here: the multiple-precision path keeps the circle, its fallback
+    // for guesses that stall in a cluster.
+    let r = roots(c, quartic_guesses(c))?;
     let scale = r.finite.iter().map(|z| z.abs()).fold(1.0, f64::max);
     for (i, a) in r.finite.iter().enumerate() {
         for b in &r.finite[i + 1..] {
