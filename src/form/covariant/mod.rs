@@ -539,15 +539,13 @@ pub fn locate_f64(c: &[f64; 5], y_cut: f64) -> Option<Located> {
             }
         }
     }
-    let cut = (y_cut > 0.0).then(|| Cut {
-        y: y_cut,
-        root_err: root_error_bound(&r),
-    });
+    let root_err = root_error_bound(&r);
+    let cut = (y_cut > 0.0).then_some(Cut { y: y_cut, root_err });
     let (x, y, err) = match descend(&r.finite, start_point(&r), cut)? {
         Descent::Minimum(x, y, err) => (x, y, err),
         Descent::Below => return Some(Located::Below),
     };
-    let err = err + 4.0 * root_error_bound(&r) * (1.0 + scale);
+    let err = err + 4.0 * root_err * (1.0 + scale);
     (err < 1e-7).then_some(Located::Point(Point { x, y, err }))
 }
 
