@@ -139,7 +139,7 @@ impl Real for Mp {
 }
 
 /// A complex number over a [`Real`].
-#[derive(Clone, Debug)]
+#[derive(Clone, Debug, Default)]
 pub struct Cx<R> {
     /// Real part.
     pub re: R,

@@ -25,6 +25,7 @@
 //! ```
 
 use crate::arith::real::{Cx, Real};
+use crate::arith::small::Small;
 
 mod precise;
 pub use precise::point_mp;
@@ -82,7 +83,7 @@ fn csqrt(re: f64, im: f64) -> (f64, f64) {
 /// degree 4), or `None` (not a quartic, or the formula broke down in f64). They only start
 /// the iteration, which then converges in a step or two instead of a dozen from a circle;
 /// the roots are those of Aberth as before.
-fn quartic_guesses(p: &[f64]) -> Option<Vec<Cx<f64>>> {
+fn quartic_guesses(p: &[f64]) -> Option<[Cx<f64>; 4]> {
     if p.len() != 5 || p[0] == 0.0 {
         return None;
     }
@@ -92,7 +93,7 @@ fn quartic_guesses(p: &[f64]) -> Option<Vec<Cx<f64>>> {
     let big_p = b - 3.0 * a * a / 8.0;
     let big_q = c - a * b / 2.0 + a * a * a / 8.0;
     let big_r = d - a * c / 4.0 + a * a * b / 16.0 - 3.0 * a * a * a * a / 256.0;
-    let mut out = Vec::with_capacity(4);
+    let mut out: Small<Cx<f64>, 4> = Small::new();
     let mut push_quadratic = |s: f64, q: f64| {
         // t² + s·t + q = 0.
         let (dr, di) = csqrt(s * s - 4.0 * q, 0.0);
@@ -122,7 +123,7 @@ fn quartic_guesses(p: &[f64]) -> Option<Vec<Cx<f64>>> {
     // Aberth needs distinct starting points.
     let ok = out.iter().all(|z| z.re.is_finite() && z.im.is_finite())
         && (0..4).all(|i| (i + 1..4).all(|j| out[i].sub(&out[j]).abs() > 0.0));
-    ok.then_some(out)
+    ok.then(|| std::array::from_fn(|k| out[k].clone()))
 }
 
 /// The largest real root of `m³ + c2·m² + c1·m + c0`, by the trigonometric or Cardano form
@@ -161,12 +162,11 @@ fn largest_real_root(c2: f64, c1: f64, c0: f64) -> Option<f64> {
 /// (`ε·Σ|cᵢ||z|ⁱ`: clustered roots cannot be located better at this precision). Returns
 /// for each root the classical a-posteriori radius `n·|p(z)/p'(z)|` (a disc of that radius
 /// about z contains a root), or `None` if the iteration diverged or never settled.
-fn aberth<R: Real>(p: &[R], z: &mut [Cx<R>], max_iter: usize) -> Option<Vec<f64>> {
+fn aberth<R: Real>(p: &[R], z: &mut [Cx<R>], max_iter: usize) -> Option<Small<f64, 4>> {
     let n = z.len();
     let eps = p[0].epsilon();
     let one = p[0].lit(1.0);
     let zero = one.lit(0.0);
-    let abs_coeffs: Vec<R> = p.iter().map(|c| c.abs()).collect();
     for _ in 0..max_iter {
         let mut worst = zero.clone();
         let mut at_noise = true;
@@ -177,8 +177,8 @@ fn aberth<R: Real>(p: &[R], z: &mut [Cx<R>], max_iter: usize) -> Option<Vec<f64>
             }
             let r = z[k].abs();
             let mut noise = zero.clone();
-            for c in &abs_coeffs {
-                noise = noise * r.clone() + c.clone();
+            for c in p {
+                noise = noise * r.clone() + c.abs();
             }
             if v.abs() > noise * eps.clone() * one.lit(64.0) {
                 at_noise = false;
@@ -226,29 +226,25 @@ struct Roots<R> {
     finite: Vec<Cx<R>>,
     at_infinity: bool,
     /// Estimated absolute error of each finite root.
-    err: Vec<f64>,
+    err: Small<f64, 4>,
 }
 
-fn roots<R: Real>(c: &[R; 5], guess: Option<Vec<Cx<f64>>>) -> Option<Roots<R>> {
+fn roots<R: Real>(c: &[R; 5], guess: Option<&[Cx<f64>]>) -> Option<Roots<R>> {
     let zero = c[0].lit(0.0);
     let at_infinity = c[0] == zero;
-    let p: Vec<R> = if at_infinity {
-        c[1..].to_vec()
-    } else {
-        c.to_vec()
-    };
+    let p: &[R] = if at_infinity { &c[1..] } else { &c[..] };
     if p[0] == zero {
         return None; // Disc = 0: at least a double root at infinity.
     }
-    let pf: Vec<f64> = p.iter().map(|x| x.to_f64()).collect();
-    let guess = guess
-        .filter(|g| g.len() == p.len() - 1)
-        .unwrap_or_else(|| initial_guesses(&pf));
-    let mut z: Vec<Cx<R>> = guess
-        .into_iter()
-        .map(|g| Cx::new(zero.lit(g.re), zero.lit(g.im)))
-        .collect();
-    let radii = aberth(&p, &mut z, 400)?;
+    let lit = |g: &Cx<f64>| Cx::new(zero.lit(g.re), zero.lit(g.im));
+    let mut z: Vec<Cx<R>> = match guess.filter(|g| g.len() == p.len() - 1) {
+        Some(g) => g.iter().map(lit).collect(),
+        None => {
+            let pf: Small<f64, 5> = p.iter().map(|x| x.to_f64()).collect();
+            initial_guesses(&pf).iter().map(lit).collect()
+        }
+    };
+    let radii = aberth(p, &mut z, 400)?;
     let eps = zero.epsilon().to_f64();
     let err = z
         .iter()
@@ -276,7 +272,7 @@ fn local<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> Local<R> {
     let zero = x.lit(0.0);
     let (two, four) = (x.lit(2.0), x.lit(4.0));
     let mut l = Local {
-        g: zero.clone(),
+        g: value(roots, x, y),
         gx: zero.clone(),
         gy: zero.clone(),
         hxx: zero.clone(),
@@ -287,7 +283,6 @@ fn local<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> Local<R> {
         let dx = x.clone() - r.re.clone();
         let w = dx.clone() * dx.clone() + y.clone() * y.clone() + r.im.clone() * r.im.clone();
         let w2 = w.clone() * w.clone();
-        l.g = l.g + w.ln();
         l.gx = l.gx + two.clone() * dx.clone() / w.clone();
         l.gy = l.gy + two.clone() * y.clone() / w.clone();
         l.hxx =
@@ -295,18 +290,33 @@ fn local<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> Local<R> {
         l.hxy = l.hxy - four.clone() * dx * y.clone() / w2.clone();
         l.hyy = l.hyy + two.clone() / w - four.clone() * y.clone() * y.clone() / w2;
     }
-    // −4 log y: all four roots, the one at infinity included.
-    l.g = l.g - four.clone() * y.ln();
+    // The −4 log y of G: all four roots, the one at infinity included.
     l.gy = l.gy - four.clone() / y.clone();
     l.hyy = l.hyy + four / (y.clone() * y.clone());
     l
 }
 
+/// G at (x, y), as `log Π_j (w_j/y)` over the four roots (`w = 1` for one at infinity):
+/// one logarithm instead of five. Should the product leave the normal range of f64, G is
+/// the sum of the five logarithms instead.
 fn value<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> R {
+    let w = |r: &Cx<R>| {
+        let dx = x.clone() - r.re.clone();
+        dx.clone() * dx + y.clone() * y.clone() + r.im.clone() * r.im.clone()
+    };
+    let mut prod = x.lit(1.0);
+    for r in roots {
+        prod = prod * (w(r) / y.clone());
+    }
+    for _ in roots.len()..4 {
+        prod = prod / y.clone();
+    }
+    if (1e-300..1e300).contains(&prod.to_f64()) {
+        return prod.ln();
+    }
     let mut g = x.lit(0.0);
     for r in roots {
-        let dx = x.clone() - r.re.clone();
-        g = g + (dx.clone() * dx + y.clone() * y.clone() + r.im.clone() * r.im.clone()).ln();
+        g = g + w(r).ln();
     }
     g - x.lit(4.0) * y.ln()
 }
@@ -530,7 +540,7 @@ pub fn locate_f64(c: &[f64; 5], y_cut: f64) -> Option<Located> {
     }
     // Ferrari's start only here: the multiple-precision path keeps the circle, its fallback
     // for guesses that stall in a cluster.
-    let r = roots(c, quartic_guesses(c))?;
+    let r = roots(c, quartic_guesses(c).as_ref().map(|g| &g[..]))?;
     let scale = r.finite.iter().map(|z| z.abs()).fold(1.0, f64::max);
     for (i, a) in r.finite.iter().enumerate() {
         for b in &r.finite[i + 1..] {
@@ -587,6 +597,28 @@ mod tests {
         assert!(z.x.abs() < 1e-12 && z.y > 1.0 && z.err < 1e-12);
         let m = point_mp(&[0, 1, 0, 0, -2].map(Integer::from), 200).unwrap();
         assert!((m.y.to_f64() - z.y).abs() < 1e-13 && m.err < 1e-50, "{m:?}");
+    }
+
+    #[test]
+    fn g_by_one_logarithm_is_the_sum_of_logarithms() {
+        // G = Σ log w_j − 4 log y (DESIGN §3), against the product form of `value`, with and
+        // without a root at infinity, and where the product leaves f64 (y = 1e-200).
+        let four = [(1.0, 0.5), (-2.0, 0.0), (0.3, -0.5), (7.0, 3.0)];
+        let roots: Vec<Cx<f64>> = four.iter().map(|&(re, im)| Cx::new(re, im)).collect();
+        for n in [4, 3] {
+            for (x, y) in [(0.2, 0.9), (-3.0, 0.01), (40.0, 25.0), (0.5, 1e-200)] {
+                let direct: f64 = roots[..n]
+                    .iter()
+                    .map(|r| ((x - r.re) * (x - r.re) + y * y + r.im * r.im).ln())
+                    .sum::<f64>()
+                    - 4.0 * f64::ln(y);
+                let g = value(&roots[..n], &x, &y);
+                assert!(
+                    (g - direct).abs() < 1e-12 * (1.0 + direct.abs()),
+                    "{n} {x} {y}"
+                );
+            }
+        }
     }
 
     #[test]

@@ -23,7 +23,7 @@ pub fn point_mp(c: &[Integer; 5], prec: u32) -> Option<Point<Mp>> {
         .map(|r| r.finite);
     // Guesses from f64 can stall inside a tight cluster; then restart from a circle.
     let good = |r: &Roots<Mp>| root_error_bound(r) < zero.epsilon().sqrt().to_f64();
-    let r = match roots(&cr, guess) {
+    let r = match roots(&cr, guess.as_deref()) {
         Some(r) if good(&r) => r,
         first => match (first, roots(&cr, None)) {
             (Some(a), Some(b)) => {
@@ -83,7 +83,7 @@ fn normalised_minimum(finite: &[Cx<Mp>]) -> Option<(Mp, Mp, f64)> {
             })
             .collect(),
         at_infinity: finite.len() < 4,
-        err: Vec::new(),
+        err: Default::default(),
     };
     // The centroid start is right almost always and cheap; the best of the pair midpoints
     // (seven evaluations of G) only when the descent from it fails.
