@@ -32,7 +32,7 @@
 use crate::arith::int::Int;
 use crate::arith::real::{Cx, Mp, Real};
 use crate::error::{Error, Result};
-use crate::form::covariant::{locate_f64, point_f64, point_mp, Located, Point};
+use crate::form::covariant::{locate_f64, point_f64, point_mp, point_mp_near, Located, Point};
 use crate::form::{Form, Gl2};
 use rug::Integer;
 
@@ -204,9 +204,12 @@ pub fn in_f_eta<T: Int>(f: &Form<T>, hint: Option<&Point<f64>>) -> Result<bool> 
             return Ok(inside);
         }
     }
+    // Near the boundary the f64 point is good to far better than the window: Newton's
+    // method from it reaches the MPFR precision in a few steps.
     let big: [Integer; 5] = std::array::from_fn(|k| f.c[k].to_integer());
+    let near = p64.map(|p| (p.x, p.y));
     for prec in precisions(max_bits(f)) {
-        if let Some(p) = point_mp(&big, prec) {
+        if let Some(p) = point_mp_near(&big, prec, near) {
             if let Some(inside) = decide(&p, (1e6 * p.err).max(1e-300)) {
                 return Ok(inside);
             }

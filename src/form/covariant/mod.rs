@@ -28,7 +28,7 @@ use crate::arith::real::{Cx, Real};
 use crate::arith::small::Small;
 
 mod precise;
-pub use precise::point_mp;
+pub use precise::{point_mp, point_mp_near};
 
 /// A point `x + i·y` of the upper half plane with an error estimate (Euclidean).
 #[derive(Clone, Debug)]
@@ -618,6 +618,29 @@ mod tests {
                     "{n} {x} {y}"
                 );
             }
+        }
+    }
+
+    #[test]
+    fn the_multiple_precision_point_does_not_depend_on_its_start() {
+        // G has one minimum: a start at the f64 point, far from it, or not in the upper half
+        // plane gives the point of the normalised descent.
+        let c = [-3i64, 4, -4, 4, -3].map(Integer::from);
+        let plain = point_mp(&c, 192).unwrap();
+        let z = point_f64(&[-3.0, 4.0, -4.0, 4.0, -3.0]).unwrap();
+        for near in [
+            Some((z.x, z.y)),
+            Some((30.0, 0.001)),
+            Some((0.0, -1.0)),
+            None,
+        ] {
+            let p = point_mp_near(&c, 192, near).unwrap();
+            let d = (p.x.clone() - plain.x.clone()).abs() + (p.y.clone() - plain.y.clone()).abs();
+            assert!(
+                d.to_f64() < 1e-50 && p.err < 1e-50,
+                "{near:?}: {d:?} {}",
+                p.err
+            );
         }
     }
 

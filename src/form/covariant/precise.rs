@@ -10,6 +10,14 @@ use rug::Integer;
 /// Julia's point of the integral form `c` at `prec` bits of MPFR precision; `None` if the
 /// iteration fails at this precision.
 pub fn point_mp(c: &[Integer; 5], prec: u32) -> Option<Point<Mp>> {
+    point_mp_near(c, prec, None)
+}
+
+/// [`point_mp`], with the descent started at `near` when given (an f64 point of the form,
+/// say): from there Newton's method reaches the working precision in a few steps. G has a
+/// single minimum, so the start changes the cost only; should the descent from `near`
+/// fail, the normalised descent of [`point_mp`] runs as without it.
+pub fn point_mp_near(c: &[Integer; 5], prec: u32, near: Option<(f64, f64)>) -> Option<Point<Mp>> {
     let zero = Mp::new(prec, 0.0);
     let cr: [Mp; 5] = std::array::from_fn(|k| zero.int_lit(&c[k]));
     // Start the roots from an f64 solve when it converges (fast), else from a circle.
@@ -41,7 +49,10 @@ pub fn point_mp(c: &[Integer; 5], prec: u32) -> Option<Point<Mp>> {
         .iter()
         .map(|z| z.abs().to_f64())
         .fold(1.0, f64::max);
-    let (x, y, err) = match normalised_minimum(&r.finite) {
+    let from_near = near
+        .filter(|(_, y)| *y > 0.0)
+        .and_then(|(x, y)| minimise(&r.finite, (zero.lit(x), zero.lit(y))));
+    let (x, y, err) = match from_near.or_else(|| normalised_minimum(&r.finite)) {
         Some(p) => p,
         None => inverted_minimum(&r)?,
     };
