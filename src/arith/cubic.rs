@@ -6,6 +6,9 @@
 //! polished by Newton's method at full precision inside the bracket, with plain bisection as
 //! the fallback when Newton leaves it or stalls. The other roots come from deflation.
 //!
+//! In f64 only: the largest real root by the closed form, and from it all complex roots
+//! (starting points and guesses that the callers verify or polish).
+//!
 //! ```
 //! use qorbits::arith::cubic::{complex_roots, discriminant};
 //! use rug::Integer;
@@ -16,6 +19,7 @@
 //! assert!(r.iter().all(|z| z.imag().clone().abs() < 1e-30));
 //! ```
 
+use crate::arith::real::Cx;
 use rug::{Complex, Float, Integer};
 
 /// Discriminant of a monic polynomial of degree 1, 2 or 3 (ascending coefficients).
@@ -36,6 +40,68 @@ pub fn discriminant(g: &[Integer]) -> Integer {
         }
         _ => unreachable!("components have degree 1 to 3"),
     }
+}
+
+/// The largest real root of `m³ + c2·m² + c1·m + c0`, by the trigonometric or Cardano form
+/// and two Newton steps, or `None` if f64 breaks down.
+pub fn largest_real_root(c2: f64, c1: f64, c0: f64) -> Option<f64> {
+    // m = u − c2/3: u³ + p·u + q.
+    let p = c1 - c2 * c2 / 3.0;
+    let q = 2.0 * c2 * c2 * c2 / 27.0 - c2 * c1 / 3.0 + c0;
+    let disc = q * q / 4.0 + p * p * p / 27.0;
+    let u = if disc > 0.0 {
+        let s = disc.sqrt();
+        (-q / 2.0 + s).cbrt() + (-q / 2.0 - s).cbrt()
+    } else if p < 0.0 {
+        let r = (-p / 3.0).sqrt();
+        let arg = (3.0 * q / (2.0 * p * r)).clamp(-1.0, 1.0);
+        2.0 * r * (arg.acos() / 3.0).cos()
+    } else {
+        0.0
+    };
+    let mut m = u - c2 / 3.0;
+    for _ in 0..2 {
+        let v = ((m + c2) * m + c1) * m + c0;
+        let dv = (3.0 * m + 2.0 * c2) * m + c1;
+        if dv != 0.0 {
+            let next = m - v / dv;
+            if next.is_finite() {
+                m = next;
+            }
+        }
+    }
+    m.is_finite().then_some(m)
+}
+
+/// The complex roots of a monic polynomial of degree 2 or 3 in f64 (ascending
+/// coefficients): the cubic's largest real root by [`largest_real_root`], then the deflated
+/// quadratic. `None` if f64 breaks down. Only good to f64's rounding and the root's
+/// conditioning: callers verify what they build from them.
+pub fn complex_roots_f64(g: &[Integer]) -> Option<Vec<Cx<f64>>> {
+    let quadratic = |b: f64, c: f64| {
+        // x² + bx + c.
+        let s = Cx::new(b * b - 4.0 * c, 0.0).sqrt();
+        [
+            Cx::new((s.re - b) / 2.0, s.im / 2.0),
+            Cx::new((-b - s.re) / 2.0, -s.im / 2.0),
+        ]
+    };
+    let gf: Vec<f64> = g.iter().map(Integer::to_f64).collect();
+    let out = match gf[..] {
+        [c, b, _] => quadratic(b, c).to_vec(),
+        [c0, c1, c2, _] => {
+            let r = largest_real_root(c2, c1, c0)?;
+            // g = (x − r)(x² + (g₂ + r)x + (g₁ + r(g₂ + r))).
+            let b = c2 + r;
+            let mut v = vec![Cx::new(r, 0.0)];
+            v.extend(quadratic(b, c1 + r * b));
+            v
+        }
+        _ => return None,
+    };
+    out.iter()
+        .all(|z| z.re.is_finite() && z.im.is_finite())
+        .then_some(out)
 }
 
 /// The complex roots of a monic polynomial of degree 2 or 3 at precision `prec`.
@@ -162,4 +228,34 @@ pub(crate) fn real_root_from_f64(g: &[Integer], prec: u32) -> Option<Float> {
         Float::with_val(prec, x0 + width),
     );
     newton(g, Float::with_val(prec, x0), &a, &b, prec)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn f64_roots_agree_with_the_multiple_precision_ones() {
+        // Three real roots (x³ − 3x + 1), one (x³ − 6x + 11), a quadratic (x² + 3x + 6),
+        // and two close roots: (x − 1000)(x − 1001)(x + 2001) = x³ − 3 003 001x +
+        // 2 003 001 000 (expanded by hand).
+        for g in [
+            vec![1, -3, 0, 1],
+            vec![11, -6, 0, 1],
+            vec![6, 3, 1],
+            vec![2_003_001_000, -3_003_001, 0, 1],
+        ] {
+            let g: Vec<Integer> = g.into_iter().map(Integer::from).collect();
+            let fast = complex_roots_f64(&g).unwrap();
+            let exact = complex_roots(&g, 200);
+            assert_eq!(fast.len(), exact.len());
+            for z in &exact {
+                let (re, im) = (z.real().to_f64(), z.imag().to_f64());
+                let near = fast.iter().any(|w| {
+                    (w.re - re).abs() + (w.im - im).abs() < 1e-9 * (1.0 + re.abs() + im.abs())
+                });
+                assert!(near, "{g:?}: no f64 root near {re} + {im}i in {fast:?}");
+            }
+        }
+    }
 }

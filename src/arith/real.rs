@@ -198,3 +198,13 @@ impl<R: Real> Cx<R> {
         Cx::new(self.re.clone(), -self.im.clone())
     }
 }
+
+impl Cx<f64> {
+    /// `√z` on the principal branch (`Re √z ≥ 0`).
+    pub fn sqrt(&self) -> Cx<f64> {
+        let r = self.abs();
+        let u = ((r + self.re) / 2.0).max(0.0).sqrt();
+        let v = ((r - self.re) / 2.0).max(0.0).sqrt();
+        Cx::new(u, if self.im < 0.0 { -v } else { v })
+    }
+}

@@ -23,7 +23,9 @@
 //! - *a square*: a square root `s` found numerically from the complex embeddings, scaled by
 //!   `D = |disc gₖ|` (which kills the denominators of the integral element s: the index
 //!   m = [O_K : Z[φ]] satisfies m² | D), rounded to integers and verified by exact
-//!   multiplication `(D·s)² = D²·u` modulo gₖ.
+//!   multiplication `(D·s)² = D²·u` modulo gₖ. The root is first sought in f64 (roots of
+//!   gₖ by the closed form), which suffices while `D·s` has small coefficients, and only
+//!   then in MPFR; the exact check makes both certain.
 //!
 //! The test alternates between more primes and more precision until one side certifies.
 //!
@@ -39,9 +41,11 @@
 //! assert!(l.equivalent(&x, &y).unwrap());
 //! ```
 
-use crate::arith::cubic::{complex_roots, discriminant};
+use crate::arith::cubic::{complex_roots, complex_roots_f64, discriminant};
 use crate::arith::fp::{self, Field, Fp64};
 use crate::arith::primes::odd_primes_from;
+use crate::arith::real::Cx;
+use crate::arith::small::Small;
 use crate::error::{Error, Result};
 use crate::form::galois::resolvent_roots;
 use crate::form::{resolvent_cubic, Form, Gl2};
@@ -70,6 +74,8 @@ struct Component {
     /// The complex roots of g (degree ≥ 2), at a precision enough for most square tests:
     /// computed at the first numerical square root.
     roots: OnceLock<Vec<Complex>>,
+    /// The roots in f64, for the first, cheap attempt at a square root.
+    roots_f64: OnceLock<Vec<Cx<f64>>>,
 }
 
 impl Component {
@@ -80,6 +86,7 @@ impl Component {
             disc,
             places: Vec::new(),
             roots: OnceLock::new(),
+            roots_f64: OnceLock::new(),
         };
         if c.g.len() > 2 {
             c.places = degree_one_places(&c, 2, FIRST_PLACES);
@@ -99,6 +106,12 @@ impl Component {
             let prec = 128 + 2 * self.disc.significant_bits() + 4 * size + 32;
             complex_roots(&self.g, prec)
         })
+    }
+
+    /// The roots in f64 (empty if f64 breaks down).
+    fn roots_f64(&self) -> &[Cx<f64>] {
+        self.roots_f64
+            .get_or_init(|| complex_roots_f64(&self.g).unwrap_or_default())
     }
 }
 
@@ -333,6 +346,9 @@ fn is_square(u: &[Integer], c: &Component) -> Result<bool> {
     if c.places.iter().any(|&place| symbol_at(u, place) == -1) {
         return Ok(false);
     }
+    if f64_root(u, c) {
+        return Ok(true);
+    }
     let bits = |x: &Integer| x.significant_bits();
     let size = u.iter().chain(&c.g).map(bits).max().unwrap_or(1);
     let mut prec = 128 + 2 * bits(&c.disc) + 2 * size;
@@ -354,6 +370,74 @@ fn is_square(u: &[Integer], c: &Component) -> Result<bool> {
             )));
         }
     }
+}
+
+/// Whether a square root of `u` modulo `g` is found in f64 and verified exactly: the cheap
+/// first attempt of [`is_square`], enough while `D·s` has small coefficients. The
+/// interpolation is that of [`numerical_root`], written out for degree 2 and 3; the sign of
+/// the first embedding's root is fixed (−s is the other root), and a sign pattern whose
+/// coefficients are not real to within ¼ is skipped (the coefficients of `D·s` are
+/// integers). `false` proves nothing: [`numerical_root`] decides then.
+fn f64_root(u: &[Integer], c: &Component) -> bool {
+    let theta = c.roots_f64();
+    let n = theta.len();
+    if n + 1 != c.g.len() {
+        return false;
+    }
+    let scale = c.disc.to_f64();
+    let uf: Small<f64, 3> = u.iter().map(Integer::to_f64).collect();
+    let mut values: Small<Cx<f64>, 3> = Small::new();
+    let mut basis: Small<[Cx<f64>; 3], 3> = Small::new();
+    for (i, t) in theta.iter().enumerate() {
+        let mut acc = Cx::new(0.0, 0.0);
+        for k in (0..n).rev() {
+            acc = acc.mul(t).add(&Cx::new(uf[k], 0.0));
+        }
+        values.push(acc.sqrt());
+        // ∏_{j≠i} (x − θⱼ) / (θᵢ − θⱼ), ascending coefficients.
+        let others: Small<Cx<f64>, 2> = (0..n)
+            .filter(|&j| j != i)
+            .map(|j| theta[j].clone())
+            .collect();
+        let denom = others
+            .iter()
+            .fold(Cx::new(1.0, 0.0), |d, tj| d.mul(&t.sub(tj)));
+        let one = Cx::new(1.0, 0.0);
+        let zero = Cx::new(0.0, 0.0);
+        let poly = match &others[..] {
+            [a] => [a.scale(&-1.0), one, zero],
+            [a, b] => [a.mul(b), a.add(b).scale(&-1.0), one],
+            _ => return false,
+        };
+        basis.push(poly.map(|p| p.div(&denom)));
+    }
+    let target: Vec<Integer> = u.iter().map(|x| x.clone() * &c.disc * &c.disc).collect();
+    for signs in 0..(1u32 << (n - 1)) {
+        let mut s = Vec::with_capacity(n);
+        for k in 0..n {
+            let mut co = Cx::new(0.0, 0.0);
+            for (i, v) in values.iter().enumerate() {
+                let term = v.mul(&basis[i][k]);
+                co = if i > 0 && signs >> (i - 1) & 1 == 1 {
+                    co.sub(&term)
+                } else {
+                    co.add(&term)
+                };
+            }
+            let (re, im) = (co.re * scale, co.im * scale);
+            if !(re.abs() < 2f64.powi(52)) {
+                return false; // beyond f64's integers, or not finite
+            }
+            if im.abs() > 0.25 {
+                break;
+            }
+            s.push(Integer::from(re.round() as i64));
+        }
+        if s.len() == n && mul_mod(&s, &s, &c.g) == target {
+            return true;
+        }
+    }
+    false
 }
 
 /// A square root of `u` modulo `g` found numerically at precision `prec` and verified
@@ -401,7 +485,8 @@ fn numerical_root(u: &[Integer], c: &Component, prec: u32) -> Option<bool> {
         .collect();
     let target: Vec<Integer> = u.iter().map(|x| x.clone() * &c.disc * &c.disc).collect();
     let scale = Float::with_val(prec, &c.disc);
-    for signs in 0..(1u32 << n) {
+    // The sign of the last embedding's root is fixed: −s is a root as well.
+    for signs in 0..(1u32 << (n - 1)) {
         let mut coeffs = vec![Complex::with_val(prec, 0); n];
         for i in 0..n {
             let s = if signs >> i & 1 == 1 {
@@ -451,6 +536,33 @@ mod tests {
             );
             let times2: Vec<Integer> = sq.iter().map(|v| Integer::from(2 * v)).collect();
             assert!(!is_square(&times2, c).unwrap(), "2·{x:?}²");
+        }
+    }
+
+    #[test]
+    fn the_f64_square_root_is_found_and_never_wrong() {
+        // A cubic field with one real place (φ³ − 6φ + 11, irreducible: no root among ±1,
+        // ±11; discriminant 4·6³ − 27·11² < 0) and the quadratic component of
+        // φ³ − 3φ − 18 = (φ − 3)(φ² + 3φ + 6) (factored by hand). For squares x² with small
+        // coefficients f64 finds the root; for non-squares it never claims one (the check
+        // is exact, so a failure here is a wrong root accepted).
+        let cubic = Algebra::new(&int(2), &int(11)).unwrap();
+        assert_eq!(cubic.degrees(), vec![3]);
+        let split = Algebra::new(&int(1), &int(-18)).unwrap();
+        assert_eq!(split.degrees(), vec![1, 2]);
+        let mut comps: Vec<&Component> = cubic.components.iter().collect();
+        comps.extend(split.components.iter().filter(|c| c.g.len() > 2));
+        for c in comps {
+            let n = c.g.len() - 1;
+            for x in [[1, 2, 0], [3, -1, 1], [5, 7, -2], [40, -3, 17]] {
+                let x: Vec<Integer> = x[..n].iter().map(|&v| int(v)).collect();
+                let sq = mul_mod(&x, &x, &c.g);
+                assert!(f64_root(&sq, c), "{:?}: {x:?}²", c.g);
+                for k in [-1, 2, 3] {
+                    let other: Vec<Integer> = sq.iter().map(|v| Integer::from(k * v)).collect();
+                    assert!(!f64_root(&other, c), "{:?}: {k}·{x:?}²", c.g);
+                }
+            }
         }
     }
 

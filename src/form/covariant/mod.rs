@@ -24,6 +24,7 @@
 //! assert!(z.x.abs() < 1e-12 && (z.y - 1.0).abs() < 1e-12);
 //! ```
 
+use crate::arith::cubic::largest_real_root;
 use crate::arith::real::{Cx, Real};
 use crate::arith::small::Small;
 
@@ -71,12 +72,10 @@ fn initial_guesses(p: &[f64]) -> Vec<Cx<f64>> {
         .collect()
 }
 
-/// `√z` on the principal branch.
+/// `√z` on the principal branch, as a pair.
 fn csqrt(re: f64, im: f64) -> (f64, f64) {
-    let r = (re * re + im * im).sqrt();
-    let u = ((r + re) / 2.0).max(0.0).sqrt();
-    let v = ((r - re) / 2.0).max(0.0).sqrt();
-    (u, if im < 0.0 { -v } else { v })
+    let r = Cx::new(re, im).sqrt();
+    (r.re, r.im)
 }
 
 /// Initial guesses for Aberth from Ferrari's closed form of the roots of a quartic (`p` of
@@ -124,37 +123,6 @@ fn quartic_guesses(p: &[f64]) -> Option<[Cx<f64>; 4]> {
     let ok = out.iter().all(|z| z.re.is_finite() && z.im.is_finite())
         && (0..4).all(|i| (i + 1..4).all(|j| out[i].sub(&out[j]).abs() > 0.0));
     ok.then(|| std::array::from_fn(|k| out[k].clone()))
-}
-
-/// The largest real root of `m³ + c2·m² + c1·m + c0`, by the trigonometric or Cardano form
-/// and two Newton steps, or `None` if f64 breaks down.
-fn largest_real_root(c2: f64, c1: f64, c0: f64) -> Option<f64> {
-    // m = u − c2/3: u³ + p·u + q.
-    let p = c1 - c2 * c2 / 3.0;
-    let q = 2.0 * c2 * c2 * c2 / 27.0 - c2 * c1 / 3.0 + c0;
-    let disc = q * q / 4.0 + p * p * p / 27.0;
-    let u = if disc > 0.0 {
-        let s = disc.sqrt();
-        (-q / 2.0 + s).cbrt() + (-q / 2.0 - s).cbrt()
-    } else if p < 0.0 {
-        let r = (-p / 3.0).sqrt();
-        let arg = (3.0 * q / (2.0 * p * r)).clamp(-1.0, 1.0);
-        2.0 * r * (arg.acos() / 3.0).cos()
-    } else {
-        0.0
-    };
-    let mut m = u - c2 / 3.0;
-    for _ in 0..2 {
-        let v = ((m + c2) * m + c1) * m + c0;
-        let dv = (3.0 * m + 2.0 * c2) * m + c1;
-        if dv != 0.0 {
-            let next = m - v / dv;
-            if next.is_finite() {
-                m = next;
-            }
-        }
-    }
-    m.is_finite().then_some(m)
 }
 
 /// Aberth–Ehrlich iteration from `z`. Runs until every correction is at the working
