@@ -425,7 +425,7 @@ fn f64_root(u: &[Integer], c: &Component) -> bool {
                 };
             }
             let (re, im) = (co.re * scale, co.im * scale);
-            if !(re.abs() < 2f64.powi(52)) {
+            if !re.is_finite() || re.abs() >= 2f64.powi(52) {
                 return false; // beyond f64's integers, or not finite
             }
             if im.abs() > 0.25 {
