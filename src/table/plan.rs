@@ -269,15 +269,15 @@ pub fn class_yield(a: i64, x: f64) -> f64 {
 }
 
 /// The model of a build, calibrated on the development machine (2 cores) by the builds of
-/// H < 10⁸ and 10⁹ (README, "Research heights": wall 77 s and 612 s, user 143 s and
-/// 1 158 s; the enumeration constant also by the build of 10¹⁰, 8 966 s of user time) and
-/// the shard part of `cargo bench --bench build`, which times the enumeration without the
-/// merge (112 s of one core at 10⁸): CPU seconds
-/// per unit of [`Plan::work`] in the enumeration, which runs on every thread, seconds per
-/// class of the merge, which is bound by its one writer thread, and bytes
-/// per class of the table (the largest measured, 266 at 10¹⁰, so that the disk check errs
-/// on the safe side) and of the runs. A rule of thumb, not a bound: `plan` prints it,
-/// `build` checks the free disk against it.
+/// H < 10⁸ and 10⁹ (README, "Research heights": wall 46 s and 336 s, user 80 s and 591 s)
+/// and the shard part of `cargo bench --bench build`, which times the enumeration without
+/// the merge (16 shards of 10⁸ on one thread, 53 s in all): CPU seconds per unit of
+/// [`Plan::work`] in the enumeration, which runs on every thread (53 s over the work of
+/// 10⁸), seconds per class of the merge, which is bound by its one writer thread (the rest
+/// of the 46 s), and bytes per class of the table (the largest measured, 266 at 10¹⁰, so
+/// that the disk check errs on the safe side) and of the runs. With these the model gives
+/// 337 s for the build of 10⁹. A rule of thumb, not a bound: `plan` prints it, `build`
+/// checks the free disk against it.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Model {
     /// CPU seconds per unit of work (a classless candidate), on one core.
@@ -292,8 +292,8 @@ pub struct Model {
 
 /// The calibrated model (see [`Model`]).
 pub const MODEL: Model = Model {
-    seconds_per_unit: 4.5e-6,
-    merge_seconds_per_class: 2.0e-5,
+    seconds_per_unit: 2.03e-6,
+    merge_seconds_per_class: 1.62e-5,
     table_bytes_per_class: 266.0,
     run_bytes_per_class: 60.0,
 };
@@ -401,8 +401,8 @@ mod tests {
     #[test]
     fn the_model_predicts_the_measured_builds_within_a_factor_one_and_a_half() {
         for (x, wall, bytes) in [
-            (100_000_000i128, 77.0, 297_263_104.0),
-            (1_000_000_000, 612.0, 2_436_673_536.0),
+            (100_000_000i128, 46.2, 297_263_104.0),
+            (1_000_000_000, 335.5, 2_436_673_536.0),
         ] {
             let p = plan(
                 &Params {

@@ -111,7 +111,7 @@ pub fn run(a: Args) -> Result<(), Error> {
     }
     writeln!(
         out,
-        "(model: qorbits::table::plan::MODEL, calibrated on the measured builds of 1e8..1e10)"
+        "(model: qorbits::table::plan::MODEL, calibrated on the measured builds of 1e8 and 1e9)"
     )
     .expect("string");
     if let Some(n) = a.shards {
