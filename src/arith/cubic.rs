@@ -73,28 +73,29 @@ pub fn largest_real_root(c2: f64, c1: f64, c0: f64) -> Option<f64> {
     m.is_finite().then_some(m)
 }
 
+/// The roots of `x² + b·x + c` in f64, `(−b ± √(b² − 4c))/2`.
+pub fn quadratic_roots(b: f64, c: f64) -> [Cx<f64>; 2] {
+    let s = Cx::new(b * b - 4.0 * c, 0.0).sqrt();
+    [
+        Cx::new((s.re - b) / 2.0, s.im / 2.0),
+        Cx::new((-b - s.re) / 2.0, -s.im / 2.0),
+    ]
+}
+
 /// The complex roots of a monic polynomial of degree 2 or 3 in f64 (ascending
 /// coefficients): the cubic's largest real root by [`largest_real_root`], then the deflated
 /// quadratic. `None` if f64 breaks down. Only good to f64's rounding and the root's
 /// conditioning: callers verify what they build from them.
 pub fn complex_roots_f64(g: &[Integer]) -> Option<Vec<Cx<f64>>> {
-    let quadratic = |b: f64, c: f64| {
-        // x² + bx + c.
-        let s = Cx::new(b * b - 4.0 * c, 0.0).sqrt();
-        [
-            Cx::new((s.re - b) / 2.0, s.im / 2.0),
-            Cx::new((-b - s.re) / 2.0, -s.im / 2.0),
-        ]
-    };
     let gf: Vec<f64> = g.iter().map(Integer::to_f64).collect();
     let out = match gf[..] {
-        [c, b, _] => quadratic(b, c).to_vec(),
+        [c, b, _] => quadratic_roots(b, c).to_vec(),
         [c0, c1, c2, _] => {
             let r = largest_real_root(c2, c1, c0)?;
             // g = (x − r)(x² + (g₂ + r)x + (g₁ + r(g₂ + r))).
             let b = c2 + r;
             let mut v = vec![Cx::new(r, 0.0)];
-            v.extend(quadratic(b, c1 + r * b));
+            v.extend(quadratic_roots(b, c1 + r * b));
             v
         }
         _ => return None,

@@ -24,7 +24,7 @@
 //! assert!(z.x.abs() < 1e-12 && (z.y - 1.0).abs() < 1e-12);
 //! ```
 
-use crate::arith::cubic::largest_real_root;
+use crate::arith::cubic::{largest_real_root, quadratic_roots};
 use crate::arith::real::{Cx, Real};
 use crate::arith::small::Small;
 
@@ -94,10 +94,9 @@ fn quartic_guesses(p: &[f64]) -> Option<[Cx<f64>; 4]> {
     let big_r = d - a * c / 4.0 + a * a * b / 16.0 - 3.0 * a * a * a * a / 256.0;
     let mut out: Small<Cx<f64>, 4> = Small::new();
     let mut push_quadratic = |s: f64, q: f64| {
-        // t² + s·t + q = 0.
-        let (dr, di) = csqrt(s * s - 4.0 * q, 0.0);
-        out.push(Cx::new((-s + dr) / 2.0 - shift, di / 2.0));
-        out.push(Cx::new((-s - dr) / 2.0 - shift, -di / 2.0));
+        for t in quadratic_roots(s, q) {
+            out.push(Cx::new(t.re - shift, t.im));
+        }
     };
     // The largest root m of the resolvent m³ + P·m² + (P²/4 − R)·m − Q²/8 (m ≥ 0).
     let (c2, c1, c0) = (big_p, big_p * big_p / 4.0 - big_r, -big_q * big_q / 8.0);
@@ -239,8 +238,9 @@ struct Local<R> {
 fn local<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> Local<R> {
     let zero = x.lit(0.0);
     let (two, four) = (x.lit(2.0), x.lit(4.0));
+    let mut prod = x.lit(1.0);
     let mut l = Local {
-        g: value(roots, x, y),
+        g: zero.clone(),
         gx: zero.clone(),
         gy: zero.clone(),
         hxx: zero.clone(),
@@ -251,6 +251,7 @@ fn local<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> Local<R> {
         let dx = x.clone() - r.re.clone();
         let w = dx.clone() * dx.clone() + y.clone() * y.clone() + r.im.clone() * r.im.clone();
         let w2 = w.clone() * w.clone();
+        prod = prod * (w.clone() / y.clone());
         l.gx = l.gx + two.clone() * dx.clone() / w.clone();
         l.gy = l.gy + two.clone() * y.clone() / w.clone();
         l.hxx =
@@ -258,24 +259,33 @@ fn local<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> Local<R> {
         l.hxy = l.hxy - four.clone() * dx * y.clone() / w2.clone();
         l.hyy = l.hyy + two.clone() / w - four.clone() * y.clone() * y.clone() / w2;
     }
+    l.g = g_of_product(prod, roots, x, y);
     // The −4 log y of G: all four roots, the one at infinity included.
     l.gy = l.gy - four.clone() / y.clone();
     l.hyy = l.hyy + four / (y.clone() * y.clone());
     l
 }
 
+/// `w_j` of a finite root at (x, y), as a sum of squares.
+fn w_of<R: Real>(r: &Cx<R>, x: &R, y: &R) -> R {
+    let dx = x.clone() - r.re.clone();
+    dx.clone() * dx + y.clone() * y.clone() + r.im.clone() * r.im.clone()
+}
+
 /// G at (x, y), as `log Π_j (w_j/y)` over the four roots (`w = 1` for one at infinity):
-/// one logarithm instead of five. Should the product leave the normal range of f64, G is
-/// the sum of the five logarithms instead.
+/// one logarithm instead of five.
 fn value<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> R {
-    let w = |r: &Cx<R>| {
-        let dx = x.clone() - r.re.clone();
-        dx.clone() * dx + y.clone() * y.clone() + r.im.clone() * r.im.clone()
-    };
     let mut prod = x.lit(1.0);
     for r in roots {
-        prod = prod * (w(r) / y.clone());
+        prod = prod * (w_of(r, x, y) / y.clone());
     }
+    g_of_product(prod, roots, x, y)
+}
+
+/// G from `Π_j (w_j/y)` over the finite roots: the division for a root at infinity, then
+/// the one logarithm. Should the product leave the normal range of f64, G is the sum of
+/// the five logarithms instead.
+fn g_of_product<R: Real>(mut prod: R, roots: &[Cx<R>], x: &R, y: &R) -> R {
     for _ in roots.len()..4 {
         prod = prod / y.clone();
     }
@@ -284,7 +294,7 @@ fn value<R: Real>(roots: &[Cx<R>], x: &R, y: &R) -> R {
     }
     let mut g = x.lit(0.0);
     for r in roots {
-        g = g + w(r).ln();
+        g = g + w_of(r, x, y).ln();
     }
     g - x.lit(4.0) * y.ln()
 }
