@@ -125,15 +125,14 @@ fn render_piece(conn: &Connection, p: &Plan, range: Option<(i64, i64)>) -> Resul
     }
     .map_err(db)?;
     let (mut out, mut line, mut held) = (Vec::new(), Vec::new(), Vec::new());
-    let mut last: Vec<Value> = Vec::new();
+    // The sort values of this row and of the one before, reused from row to row.
+    let (mut key, mut last): (Vec<Value>, Vec<Value>) = (Vec::new(), Vec::new());
     let mut count = 0u64;
     while let Some(r) = rows.next().map_err(db)? {
-        let key: Vec<Value> = p
-            .order
-            .iter()
-            .map(|&c| r.get_ref(c).map(Value::from))
-            .collect::<rusqlite::Result<_>>()
-            .map_err(db)?;
+        key.clear();
+        for &c in &p.order {
+            key.push(r.get_ref(c).map(Value::from).map_err(db)?);
+        }
         // The sort columns strictly increase: the order is total, as in the reference.
         // `first` is the first sort column that changed (0 for the first row).
         let mut first = 0;
@@ -147,7 +146,7 @@ fn render_piece(conn: &Connection, p: &Plan, range: Option<(i64, i64)>) -> Resul
                 return Err(not_expected("sort keys that do not strictly increase"));
             }
         }
-        last = key;
+        std::mem::swap(&mut last, &mut key);
         if p.held.is_some_and(|(group, _)| first < group) {
             out.append(&mut held);
         }
