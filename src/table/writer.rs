@@ -39,7 +39,7 @@ use crate::table::schema::{
     place_to_column, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_VERSION,
 };
 use crate::table::space::{no_space, sqlite_cause};
-use rusqlite::{params, Connection, ErrorCode, OpenFlags, ToSql};
+use rusqlite::{params, Connection, ErrorCode, OpenFlags};
 use std::path::{Path, PathBuf};
 
 /// A table being written. Push the pairs in table order, then [`TableWriter::finish`]; a
@@ -53,9 +53,6 @@ pub struct TableWriter {
     classes: i64,
     pairs: i64,
     last: Option<(i64, i64, i64, [i64; 5])>,
-    /// The statements inserting n rows of `local` and of `pair_primes`, by n.
-    local_sql: Vec<String>,
-    primes_sql: Vec<String>,
 }
 
 /// How many rows [`TableWriter::finish`] wrote.
@@ -82,8 +79,6 @@ impl TableWriter {
             classes: 0,
             pairs: 0,
             last: None,
-            local_sql: Vec::new(),
-            primes_sql: Vec::new(),
         })
     }
 
@@ -221,8 +216,9 @@ impl TableWriter {
                 r.insoluble_at(),
                 first_of[k],
             ])?;
-            // In key order (class_id, p): the real place (p = 0) first; all places of a
-            // class in one statement, which inserts them in that order.
+            // In key order (class_id, p): the real place (p = 0) first. One row per
+            // statement: the bytes depend only on the order of the rows, and single-row
+            // statements were no slower than one statement for all places of a class.
             let mut places: Vec<(i64, &LocalPlace<i64>)> = r
                 .local
                 .iter()
@@ -230,12 +226,11 @@ impl TableWriter {
                 .collect();
             places.sort_by_key(|&(p, _)| p);
             if !places.is_empty() {
-                let mut values: Vec<&dyn ToSql> = Vec::with_capacity(5 * places.len());
+                let mut one =
+                    conn.prepare_cached("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?;
                 for (p, l) in &places {
-                    values.extend([&id as &dyn ToSql, p, &l.v_disc, &l.pattern, &l.soluble]);
+                    one.execute(params![id, p, l.v_disc, l.pattern, l.soluble])?;
                 }
-                conn.prepare_cached(sql_for(&mut self.local_sql, "local", 5, places.len()))?
-                    .execute(&values[..])?;
             }
         }
         self.classes += pair.classes.len() as i64;
@@ -260,36 +255,15 @@ impl TableWriter {
             pair.els() as i64,
             pair.over_q.len() as i64,
         ])?;
-        // The primes of the pair in one statement, in order.
+        // The primes of the pair, in order.
         if !pair.disc_factors.is_empty() {
-            let mut values: Vec<&dyn ToSql> = Vec::with_capacity(3 * pair.disc_factors.len());
+            let mut one = conn.prepare_cached("INSERT INTO pair_primes VALUES (?1, ?2, ?3)")?;
             for (q, e) in &pair.disc_factors {
-                values.extend([&self.pairs as &dyn ToSql, q, e]);
+                one.execute(params![self.pairs, q, e])?;
             }
-            conn.prepare_cached(sql_for(
-                &mut self.primes_sql,
-                "pair_primes",
-                3,
-                pair.disc_factors.len(),
-            ))?
-            .execute(&values[..])?;
         }
         Ok(())
     }
-}
-
-/// [`insert_sql`], kept in `cache` by `n`.
-fn sql_for<'a>(cache: &'a mut Vec<String>, table: &str, columns: usize, n: usize) -> &'a str {
-    while cache.len() <= n {
-        cache.push(insert_sql(table, columns, cache.len()));
-    }
-    &cache[n]
-}
-
-/// The statement inserting `n` rows of `columns` values into `table` at once.
-fn insert_sql(table: &str, columns: usize, n: usize) -> String {
-    let row = format!("({})", vec!["?"; columns].join(", "));
-    format!("INSERT INTO {table} VALUES {}", vec![row; n].join(", "))
 }
 
 /// Creates a database of format `f` in the (empty) file `tmp`: the fixed settings (page
@@ -323,9 +297,6 @@ pub fn new_database(tmp: &Path, f: &Format) -> rusqlite::Result<Connection> {
 /// transaction.
 fn open_new(tmp: &Path, params: &Params) -> rusqlite::Result<Connection> {
     let conn = new_database(tmp, &TABLE)?;
-    // Room for the statements of every number of local rows of a class and of primes of
-    // a pair.
-    conn.set_prepared_statement_cache_capacity(64);
     {
         let mut meta = conn.prepare("INSERT INTO meta (key, value) VALUES (?1, ?2)")?;
         let include = if params.include_reducible { "1" } else { "0" };
