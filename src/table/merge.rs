@@ -138,9 +138,7 @@ pub fn merge_into(
         let (send, receive) = std::sync::mpsc::sync_channel::<Vec<Pair>>(IN_FLIGHT);
         let writing = scope.spawn(move || -> Result<()> {
             for pairs in receive {
-                for p in &pairs {
-                    writer.push(p)?;
-                }
+                writer.push_all(&pairs)?;
             }
             Ok(())
         });

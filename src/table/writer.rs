@@ -39,7 +39,7 @@ use crate::table::schema::{
     place_to_column, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_VERSION,
 };
 use crate::table::space::{no_space, sqlite_cause};
-use rusqlite::{params, Connection, ErrorCode, OpenFlags};
+use rusqlite::{params, CachedStatement, Connection, ErrorCode, OpenFlags};
 use std::path::{Path, PathBuf};
 
 /// A table being written. Push the pairs in table order, then [`TableWriter::finish`]; a
@@ -52,7 +52,7 @@ pub struct TableWriter {
     conn: Connection,
     classes: i64,
     pairs: i64,
-    last: Option<(i64, i64, i64, [i64; 5])>,
+    last: Option<Key>,
 }
 
 /// How many rows [`TableWriter::finish`] wrote.
@@ -85,27 +85,50 @@ impl TableWriter {
     /// Appends one pair (labelled and grouped, as [`crate::table::group`] makes it); pairs
     /// must come in table order.
     pub fn push(&mut self, pair: &Pair) -> Result<()> {
-        let (mut ni, mut nr) = (0, 0);
-        for r in &pair.classes {
-            self.check(r)?;
-            let n = if r.irreducible() {
-                ni += 1;
-                ni
-            } else {
-                nr += 1;
-                nr
-            };
-            if (r.i, r.j) != (pair.i, pair.j) || r.label != label(r.i, r.j, r.irreducible(), n) {
-                return Err(Error::Input(format!(
-                    "cannot write the table: row {} ({}) does not have the label of its place in \
-                     its pair; group rows with table::group",
-                    self.classes + 1,
-                    r.label
-                )));
+        self.push_all(std::slice::from_ref(pair))
+    }
+
+    /// Appends pairs in table order, as many [`TableWriter::push`]es would, with the
+    /// statements looked up once for all of them.
+    pub fn push_all(&mut self, pairs: &[Pair]) -> Result<()> {
+        let TableWriter {
+            target,
+            params,
+            conn,
+            classes,
+            pairs: written,
+            last,
+            ..
+        } = self;
+        let failed = |e| write_error(target, Some(conn), e);
+        let mut st = Statements::new(conn).map_err(failed)?;
+        for pair in pairs {
+            let row = *classes + 1;
+            let (mut ni, mut nr) = (0, 0);
+            for r in &pair.classes {
+                check(r, row, last, params)?;
+                let n = if r.irreducible() {
+                    ni += 1;
+                    ni
+                } else {
+                    nr += 1;
+                    nr
+                };
+                if (r.i, r.j) != (pair.i, pair.j) || r.label != label(r.i, r.j, r.irreducible(), n)
+                {
+                    return Err(Error::Input(format!(
+                        "cannot write the table: row {row} ({}) does not have the label of \
+                         its place in its pair; group rows with table::group",
+                        r.label
+                    )));
+                }
             }
+            st.insert(pair, row, *written + 1, params)
+                .map_err(|e| write_error(target, Some(conn), e))?;
+            *classes += pair.classes.len() as i64;
+            *written += 1;
         }
-        self.insert(pair)
-            .map_err(|e| write_error(&self.target, Some(&self.conn), e))
+        Ok(())
     }
 
     /// Builds the indexes, commits, flushes and renames the file into place.
@@ -142,59 +165,87 @@ impl TableWriter {
         tmp.commit(&target, replace)?;
         Ok(written)
     }
+}
 
-    /// The rows must be what the pipeline makes for these parameters.
-    fn check(&mut self, r: &ClassRow) -> Result<()> {
-        let bad = |why: &str| {
-            Error::Input(format!(
-                "cannot write the table: row {} ({}) {why}",
-                self.classes + 1,
-                r.label
-            ))
-        };
-        if r.label.is_empty() {
-            return Err(bad("has no label; group rows with table::group"));
-        }
-        if self.last.is_some_and(|k| k >= r.key()) {
-            return Err(bad("is out of table order; group rows with table::group"));
-        }
-        self.last = Some(r.key());
-        if i128::from(r.h4) >= 4 * self.params.height {
-            return Err(bad("is not below the height bound of the parameters"));
-        }
-        if r.irreducible() != r.galois.is_some() {
-            return Err(bad("has a Galois group exactly when it is reducible"));
-        }
-        if r.rational.is_some() != r.grouped_over_q() {
-            return Err(bad(
-                "has a class over Q exactly when it is not an els class without a rational root",
-            ));
-        }
-        if !r.irreducible() && !self.params.include_reducible {
-            return Err(bad(
-                "is reducible but the parameters exclude reducible classes",
-            ));
-        }
-        Ok(())
+/// Row number `row` (its pair's first), after the row with key `last`, must be what the
+/// pipeline makes for `params`.
+fn check(r: &ClassRow, row: i64, last: &mut Option<Key>, params: &Params) -> Result<()> {
+    let bad = |why: &str| {
+        Error::Input(format!(
+            "cannot write the table: row {row} ({}) {why}",
+            r.label
+        ))
+    };
+    if r.label.is_empty() {
+        return Err(bad("has no label; group rows with table::group"));
+    }
+    if (*last).is_some_and(|k| k >= r.key()) {
+        return Err(bad("is out of table order; group rows with table::group"));
+    }
+    *last = Some(r.key());
+    if i128::from(r.h4) >= 4 * params.height {
+        return Err(bad("is not below the height bound of the parameters"));
+    }
+    if r.irreducible() != r.galois.is_some() {
+        return Err(bad("has a Galois group exactly when it is reducible"));
+    }
+    if r.rational.is_some() != r.grouped_over_q() {
+        return Err(bad(
+            "has a class over Q exactly when it is not an els class without a rational root",
+        ));
+    }
+    if !r.irreducible() && !params.include_reducible {
+        return Err(bad(
+            "is reducible but the parameters exclude reducible classes",
+        ));
+    }
+    Ok(())
+}
+
+/// The sort key of a row (see [`ClassRow::key`]).
+type Key = (i64, i64, i64, [i64; 5]);
+
+/// The four insert statements of a batch of pairs, looked up once.
+struct Statements<'c> {
+    classes: CachedStatement<'c>,
+    local: CachedStatement<'c>,
+    pairs: CachedStatement<'c>,
+    primes: CachedStatement<'c>,
+}
+
+impl<'c> Statements<'c> {
+    fn new(conn: &'c Connection) -> rusqlite::Result<Statements<'c>> {
+        Ok(Statements {
+            classes: conn.prepare_cached(
+                "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, \
+                 ?13, ?14, ?15, ?16, ?17, ?18, ?19, ?20)",
+            )?,
+            local: conn.prepare_cached("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?,
+            pairs: conn.prepare_cached(
+                "INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12)",
+            )?,
+            primes: conn.prepare_cached("INSERT INTO pair_primes VALUES (?1, ?2, ?3)")?,
+        })
     }
 
-    fn insert(&mut self, pair: &Pair) -> rusqlite::Result<()> {
-        let first_id = self.classes + 1;
+    /// Inserts one checked pair, its first class numbered `first_id` and itself `pair_id`.
+    fn insert(
+        &mut self,
+        pair: &Pair,
+        first_id: i64,
+        pair_id: i64,
+        params: &Params,
+    ) -> rusqlite::Result<()> {
         let mut first_of = vec![None; pair.classes.len()];
         for class in &pair.over_q {
             for &k in class {
                 first_of[k] = Some(first_id + class[0] as i64);
             }
         }
-        let conn = &self.conn;
-        let mut ins = conn.prepare_cached(
-            "INSERT INTO classes VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, \
-             ?14, ?15, ?16, ?17, ?18, ?19, ?20)",
-        )?;
         for (k, r) in pair.classes.iter().enumerate() {
             let id = first_id + k as i64;
             let [a, b, c, d, e] = r.form;
-            ins.execute(params![
+            self.classes.execute(params![
                 id,
                 r.label,
                 a,
@@ -225,22 +276,14 @@ impl TableWriter {
                 .map(|l| (place_to_column(&l.place), l))
                 .collect();
             places.sort_by_key(|&(p, _)| p);
-            if !places.is_empty() {
-                let mut one =
-                    conn.prepare_cached("INSERT INTO local VALUES (?1, ?2, ?3, ?4, ?5)")?;
-                for (p, l) in &places {
-                    one.execute(params![id, p, l.v_disc, l.pattern, l.soluble])?;
-                }
+            for (p, l) in &places {
+                self.local
+                    .execute(params![id, p, l.v_disc, l.pattern, l.soluble])?;
             }
         }
-        self.classes += pair.classes.len() as i64;
-        self.pairs += 1;
         let (classes, irreducible) = (pair.classes.len() as i64, pair.irreducible() as i64);
-        conn.prepare_cached(
-            "INSERT INTO pairs VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12)",
-        )?
-        .execute(params![
-            self.pairs,
+        self.pairs.execute(params![
+            pair_id,
             first_id,
             pair.i,
             pair.j,
@@ -249,18 +292,13 @@ impl TableWriter {
             pair.h4,
             classes,
             irreducible,
-            self.params
-                .include_reducible
-                .then_some(classes - irreducible),
+            params.include_reducible.then_some(classes - irreducible),
             pair.els() as i64,
             pair.over_q.len() as i64,
         ])?;
         // The primes of the pair, in order.
-        if !pair.disc_factors.is_empty() {
-            let mut one = conn.prepare_cached("INSERT INTO pair_primes VALUES (?1, ?2, ?3)")?;
-            for (q, e) in &pair.disc_factors {
-                one.execute(params![self.pairs, q, e])?;
-            }
+        for (q, e) in &pair.disc_factors {
+            self.primes.execute(params![pair_id, q, e])?;
         }
         Ok(())
     }
