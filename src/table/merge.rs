@@ -11,7 +11,7 @@
 use crate::error::{Error, Result};
 use crate::progress::Progress;
 use crate::table::group::make_pair;
-use crate::table::row::{ClassRow, Pair, Params};
+use crate::table::row::{ClassRow, Key, Pair, Params};
 use crate::table::runs::{RunReader, RunWriter};
 use crate::table::writer::TableWriter;
 use rayon::prelude::*;
@@ -36,8 +36,6 @@ pub struct Run {
     /// The file.
     pub path: PathBuf,
 }
-
-type Key = (i64, i64, i64, [i64; 5]);
 
 /// Merges runs into a stream of rows in key order, calling `row` for each.
 fn merge_rows(

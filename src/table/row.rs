@@ -46,6 +46,9 @@ impl Params {
     }
 }
 
+/// The sort key of a row in table order, `(H4, I, J, (a, b, c, d, e))` (DESIGN §4).
+pub type Key = (i64, i64, i64, [i64; 5]);
+
 /// One class: canonical representative and everything the kernel computes about it.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct ClassRow {
@@ -104,7 +107,7 @@ impl ClassRow {
     }
 
     /// The sort key of the table.
-    pub fn key(&self) -> (i64, i64, i64, [i64; 5]) {
+    pub fn key(&self) -> Key {
         (self.h4, self.i, self.j, self.form)
     }
 }

@@ -37,7 +37,7 @@ use crate::form::invariants_from_ij;
 use crate::form::local::LocalPlace;
 use crate::form::Signature;
 use crate::table::atomic::TempFile;
-use crate::table::row::{ClassRow, Params};
+use crate::table::row::{ClassRow, Key, Params};
 use crate::table::schema::{place_from_column, place_to_column};
 use crate::table::space::write_error;
 use sha2::{Digest, Sha256};
@@ -217,7 +217,7 @@ pub struct RunWriter {
     out: BufWriter<File>,
     hasher: Sha256,
     rows: u64,
-    last: Option<(i64, i64, i64, [i64; 5])>,
+    last: Option<Key>,
     row: Vec<u8>,
 }
 
@@ -307,7 +307,7 @@ pub struct RunReader {
     hasher: Sha256,
     left: u64,
     rows: u64,
-    last: Option<(i64, i64, i64, [i64; 5])>,
+    last: Option<Key>,
     buf: Vec<u8>,
 }
 

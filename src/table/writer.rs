@@ -34,7 +34,7 @@ use crate::form::local::LocalPlace;
 use crate::table::atomic::TempFile;
 use crate::table::format::{Format, TABLE};
 use crate::table::group::label;
-use crate::table::row::{ClassRow, Pair, Params, Table};
+use crate::table::row::{ClassRow, Key, Pair, Params, Table};
 use crate::table::schema::{
     place_to_column, INDEX_SQL, LABEL_RULE, ORDERING, PAGE_SIZE, SCHEMA_VERSION,
 };
@@ -123,8 +123,7 @@ impl TableWriter {
                     )));
                 }
             }
-            st.insert(pair, row, *written + 1, params)
-                .map_err(|e| write_error(target, Some(conn), e))?;
+            st.insert(pair, row, *written + 1, params).map_err(failed)?;
             *classes += pair.classes.len() as i64;
             *written += 1;
         }
@@ -201,9 +200,6 @@ fn check(r: &ClassRow, row: i64, last: &mut Option<Key>, params: &Params) -> Res
     }
     Ok(())
 }
-
-/// The sort key of a row (see [`ClassRow::key`]).
-type Key = (i64, i64, i64, [i64; 5]);
 
 /// The four insert statements of a batch of pairs, looked up once.
 struct Statements<'c> {
