@@ -94,7 +94,7 @@ pub struct Plan {
 fn split(task: Task, counts: &[(i64, u64)], limit: u64, x: f64) -> Vec<(Segment, u64)> {
     let mut out: Vec<(Segment, u64, f64)> = Vec::new();
     for &(c, n) in counts {
-        let classes = n as f64 * class_yield(task.a, task.b, c, x);
+        let classes = classes_at(task, c, n, x);
         match out.last_mut() {
             Some((seg, m, k)) if *m + n <= limit => {
                 seg.c_hi = c;
@@ -124,12 +124,14 @@ fn split(task: Task, counts: &[(i64, u64)], limit: u64, x: f64) -> Vec<(Segment,
         .collect()
 }
 
+/// The classes expected among the `n` candidates of one task with third coefficient `c`.
+fn classes_at(task: Task, c: i64, n: u64, x: f64) -> f64 {
+    n as f64 * class_yield(task.a, task.b, c, x)
+}
+
 /// The classes expected among the candidates of one task, counted per value of c.
 fn expected_classes(task: Task, counts: &[(i64, u64)], x: f64) -> u64 {
-    let k: f64 = counts
-        .iter()
-        .map(|&(c, n)| n as f64 * class_yield(task.a, task.b, c, x))
-        .sum();
+    let k: f64 = counts.iter().map(|&(c, n)| classes_at(task, c, n, x)).sum();
     k.round() as u64
 }
 
